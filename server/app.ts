@@ -1,0 +1,102 @@
+import connectPgSimple from "connect-pg-simple";
+import cookieParser from "cookie-parser";
+import express, { Router, type Express } from "express";
+import session from "express-session";
+import helmet from "helmet";
+import fs from "node:fs";
+import path from "node:path";
+import passport from "passport";
+import "./auth/types";
+import { csrfProtection } from "./auth/csrf";
+import type { Config } from "./config";
+import type { Database } from "./db/client";
+import { apiNotFound, errorHandler, HttpError } from "./http/errors";
+import type { Mailer } from "./mail/mailer";
+import { accountRoutes } from "./routes/account";
+import { authRoutes } from "./routes/auth";
+import { devMailRoutes } from "./routes/dev-mail";
+import { studyRoutes } from "./routes/studies";
+import { userForApiToken } from "./services/api-tokens";
+import { findUserById } from "./services/users";
+
+export interface AppDeps extends Database {
+  config: Config;
+  mailer: Mailer;
+}
+
+export const API_PREFIX = "/api/v1";
+/** Largest JSON body accepted (a 500-stage life cycle with formulas fits comfortably). */
+export const JSON_LIMIT = "5mb";
+
+/** Every JSON route, on one router so tests can enumerate what is mounted. */
+export function createApiRouter(deps: AppDeps): Router {
+  const r = Router();
+  r.get("/health", async (_req, res) => {
+    await deps.pool.query("select 1");
+    res.json({ ok: true });
+  });
+  authRoutes(r, deps);
+  accountRoutes(r, deps);
+  studyRoutes(r, deps);
+  if (deps.config.mailOutbox) devMailRoutes(r, deps);
+  return r;
+}
+
+export function createApp(deps: AppDeps): Express {
+  const { config, db, pool } = deps;
+  const app = express();
+  app.disable("x-powered-by");
+  app.set("trust proxy", "loopback");
+  app.use(helmet({ contentSecurityPolicy: { directives: { "img-src": ["'self'", "data:", "blob:"], "upgrade-insecure-requests": null } } }));
+
+  const api = express.Router();
+  api.use(express.json({ limit: JSON_LIMIT }));
+  api.use(cookieParser());
+  const PgStore = connectPgSimple(session);
+  api.use(
+    session({
+      store: new PgStore({ pool, tableName: "session", createTableIfMissing: false }),
+      name: "sw_session",
+      secret: config.sessionSecret,
+      resave: false,
+      saveUninitialized: false,
+      rolling: true,
+      cookie: { httpOnly: true, sameSite: "lax", secure: config.publicUrl.startsWith("https:"), maxAge: 14 * 86_400_000 },
+    }),
+  );
+  passport.serializeUser((user, done) => done(null, user.id));
+  passport.deserializeUser((id: string, done) => {
+    findUserById(db, id).then((u) => done(null, u ?? false), done);
+  });
+  api.use(passport.initialize());
+  api.use(passport.session());
+  // Scripts authenticate with `Authorization: Bearer <token>`; such requests carry no cookie credentials.
+  api.use(async (req, _res, next) => {
+    const header = req.get("authorization");
+    if (!header) return next();
+    const match = /^Bearer\s+(\S+)$/i.exec(header);
+    const user = match ? await userForApiToken(db, match[1]!) : null;
+    if (!user) return next(new HttpError(401, "The API token is not valid: it may be mistyped or revoked. Mint a new one in Settings."));
+    req.user = user;
+    req.authVia = "token";
+    next();
+  });
+  api.use((req, _res, next) => {
+    if (req.user && !req.authVia) req.authVia = "session";
+    next();
+  });
+  api.use(csrfProtection(config.sessionSecret, { secureCookie: config.publicUrl.startsWith("https:") }));
+  api.use(createApiRouter(deps));
+  api.use(apiNotFound);
+  app.use(API_PREFIX, api);
+  app.use("/api", apiNotFound);
+
+  if (config.staticDir && fs.existsSync(path.join(config.staticDir, "index.html"))) {
+    const dir = config.staticDir;
+    app.use(express.static(dir, { index: false, maxAge: "1h" }));
+    // Single-page app: every other path is the client's (Express 5 spells the wildcard this way).
+    app.get("/{*splat}", (_req, res) => res.sendFile(path.join(dir, "index.html")));
+  }
+  app.use(errorHandler);
+  return app;
+}

@@ -1,0 +1,29 @@
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { createApp } from "./app";
+import { loadConfig } from "./config";
+import { connect } from "./db/client";
+import { createMailer } from "./mail/mailer";
+
+const config = loadConfig();
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
+const database = connect(config.databaseUrl);
+const mailer = createMailer(config.smtp);
+const app = createApp({ ...database, config: { ...config, staticDir: config.staticDir ?? path.join(root, "dist") }, mailer });
+
+const server = app.listen(config.port, config.host, () => {
+  console.log(`Stagewright web server on http://${config.host}:${config.port}`);
+});
+
+let stopping = false;
+async function stop() {
+  if (stopping) return;
+  stopping = true;
+  server.close();
+  server.closeAllConnections();
+  mailer.close();
+  await database.pool.end().catch(() => undefined);
+  process.exit(0);
+}
+process.on("SIGTERM", stop);
+process.on("SIGINT", stop);

@@ -1,0 +1,32 @@
+import type { Router } from "express";
+import { ApiTokenCreateSchema, PasswordChangeSchema, ProfileUpdateSchema } from "../../shared/schemas/auth";
+import type { AppDeps } from "../app";
+import { currentUser, signedIn, uuidParam } from "../auth/authorize";
+import { createApiToken, listApiTokens, revokeApiToken } from "../services/api-tokens";
+import { changePassword, updateProfile } from "../services/users";
+
+export function accountRoutes(r: Router, { db }: AppDeps): void {
+  r.patch("/account/profile", signedIn, async (req, res) => {
+    const user = await updateProfile(db, currentUser(req).id, ProfileUpdateSchema.parse(req.body));
+    res.json({ user });
+  });
+
+  r.post("/account/password", signedIn, async (req, res) => {
+    await changePassword(db, currentUser(req).id, PasswordChangeSchema.parse(req.body));
+    res.status(204).end();
+  });
+
+  r.get("/account/tokens", signedIn, async (req, res) => {
+    res.json(await listApiTokens(db, currentUser(req).id));
+  });
+
+  r.post("/account/tokens", signedIn, async (req, res) => {
+    const { name } = ApiTokenCreateSchema.parse(req.body);
+    res.status(201).json(await createApiToken(db, currentUser(req).id, name));
+  });
+
+  r.delete("/account/tokens/:tokenId", signedIn, async (req, res) => {
+    await revokeApiToken(db, currentUser(req).id, uuidParam(req, "tokenId"));
+    res.status(204).end();
+  });
+}

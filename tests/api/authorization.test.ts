@@ -1,0 +1,190 @@
+import { randomBytes } from "node:crypto";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import type { Role } from "../../shared/schemas/studies";
+import { createApiRouter } from "../../server/app";
+import { sha256 } from "../../server/auth/secrets";
+import { invitations, memberships } from "../../server/db/schema";
+import { createApiToken } from "../../server/services/api-tokens";
+import { browserAgent, signUpAgent, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
+
+/**
+ * The authorisation matrix: every route mounted on the API router must have an
+ * entry here, and every entry is exercised for owner, editor, reviewer, viewer,
+ * a signed-in non-member and an anonymous visitor.
+ *   public → nobody is refused; user → anonymous 401;
+ *   <role> → anonymous 401, non-member 404, member below the role 403.
+ */
+type Access = "public" | "user" | Role;
+type Persona = Role | "nonMember" | "anonymous";
+const PERSONAS: Persona[] = ["owner", "editor", "reviewer", "viewer", "nonMember", "anonymous"];
+const RANK: Record<Role, number> = { viewer: 0, reviewer: 1, editor: 2, owner: 3 };
+
+interface Ctx {
+  server: TestServer;
+  studyId: string;
+  persona: Persona;
+  agent: BrowserAgent;
+  userId: string | null;
+}
+interface Entry {
+  access: Access;
+  /** The route changes who the agent is signed in as: run it on a fresh agent of the persona. */
+  ownAgent?: true;
+  request: (ctx: Ctx) => Promise<{ path: string; body?: object }>;
+}
+
+let seq = 0;
+const unique = () => `${Date.now()}-${++seq}`;
+
+async function freshMember(ctx: Ctx, role: Role = "viewer"): Promise<string> {
+  const a = await signUpAgent(ctx.server);
+  await ctx.server.db.insert(memberships).values({ studyId: ctx.studyId, userId: a.user.id, role });
+  return a.user.id;
+}
+async function freshInvitation(ctx: Ctx): Promise<{ id: string; token: string }> {
+  const token = randomBytes(32).toString("base64url");
+  const [row] = await ctx.server.db
+    .insert(invitations)
+    .values({ studyId: ctx.studyId, email: `invitee-${unique()}@example.org`, role: "viewer", tokenHash: sha256(token), expiresAt: new Date(Date.now() + 86_400_000) })
+    .returning();
+  return { id: row!.id, token };
+}
+
+const MATRIX: Record<string, Entry> = {
+  "GET /health": { access: "public", request: async () => ({ path: "/health" }) },
+  "GET /auth/session": { access: "public", request: async () => ({ path: "/auth/session" }) },
+  "POST /auth/sign-up": {
+    access: "public",
+    ownAgent: true,
+    request: async () => ({ path: "/auth/sign-up", body: { name: "New Person", email: `new-${unique()}@example.org`, password: "long enough password" } }),
+  },
+  "POST /auth/sign-in": {
+    access: "public",
+    ownAgent: true,
+    request: async (ctx) => {
+      const email = `signin-${unique()}@example.org`;
+      await (await browserAgent(ctx.server)).post("/api/v1/auth/sign-up", { name: "S", email, password: "long enough password" });
+      return { path: "/auth/sign-in", body: { email, password: "long enough password" } };
+    },
+  },
+  "POST /auth/sign-out": { access: "public", ownAgent: true, request: async () => ({ path: "/auth/sign-out" }) },
+  "POST /auth/password-reset/request": { access: "public", request: async () => ({ path: "/auth/password-reset/request", body: { email: "someone@example.org" } }) },
+  "POST /auth/password-reset/confirm": {
+    // With a made-up token the answer is 400; what matters here is that nobody is turned away for who they are.
+    access: "public",
+    request: async () => ({ path: "/auth/password-reset/confirm", body: { token: "made-up", password: "long enough password" } }),
+  },
+  "PATCH /account/profile": { access: "user", request: async () => ({ path: "/account/profile", body: { name: "Renamed Person" } }) },
+  "POST /account/password": { access: "user", request: async () => ({ path: "/account/password", body: { currentPassword: "correct horse battery", newPassword: "correct horse battery" } }) },
+  "GET /account/tokens": { access: "user", request: async () => ({ path: "/account/tokens" }) },
+  "POST /account/tokens": { access: "user", request: async () => ({ path: "/account/tokens", body: { name: "script" } }) },
+  "DELETE /account/tokens/:tokenId": {
+    access: "user",
+    request: async (ctx) => {
+      if (!ctx.userId) return { path: "/account/tokens/00000000-0000-4000-8000-000000000000" };
+      const t = await createApiToken(ctx.server.db, ctx.userId, "to revoke");
+      return { path: `/account/tokens/${t.id}` };
+    },
+  },
+  "GET /studies": { access: "user", request: async () => ({ path: "/studies" }) },
+  "POST /studies": { access: "user", request: async () => ({ path: "/studies", body: { name: `Study ${unique()}` } }) },
+  "GET /studies/:studyId": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}` }) },
+  "PATCH /studies/:studyId": { access: "owner", request: async (c) => ({ path: `/studies/${c.studyId}`, body: { description: `changed ${unique()}` } }) },
+  "GET /studies/:studyId/members": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}/members` }) },
+  "PATCH /studies/:studyId/members/:userId": {
+    access: "owner",
+    request: async (c) => ({ path: `/studies/${c.studyId}/members/${await freshMember(c)}`, body: { role: "reviewer" } }),
+  },
+  "DELETE /studies/:studyId/members/:userId": {
+    // Removing someone else needs the owner role (leaving oneself is tested in studies.test.ts).
+    access: "owner",
+    request: async (c) => ({ path: `/studies/${c.studyId}/members/${await freshMember(c)}` }),
+  },
+  "GET /studies/:studyId/invitations": { access: "owner", request: async (c) => ({ path: `/studies/${c.studyId}/invitations` }) },
+  "POST /studies/:studyId/invitations": {
+    access: "owner",
+    request: async (c) => ({ path: `/studies/${c.studyId}/invitations`, body: { email: `invited-${unique()}@example.org`, role: "viewer" } }),
+  },
+  "DELETE /studies/:studyId/invitations/:invitationId": {
+    access: "owner",
+    request: async (c) => ({ path: `/studies/${c.studyId}/invitations/${(await freshInvitation(c)).id}` }),
+  },
+  "GET /studies/:studyId/activity": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}/activity` }) },
+  "GET /invitations/:token": { access: "public", request: async (c) => ({ path: `/invitations/${(await freshInvitation(c)).token}` }) },
+  "POST /invitations/:token/accept": { access: "user", request: async (c) => ({ path: `/invitations/${(await freshInvitation(c)).token}/accept` }) },
+  "GET /dev/mail": { access: "public", request: async () => ({ path: "/dev/mail" }) },
+};
+
+async function freshAgent(persona: Role | "nonMember") {
+  const a = await signUpAgent(server);
+  if (persona !== "nonMember") await server.db.insert(memberships).values({ studyId, userId: a.user.id, role: persona });
+  return { agent: a as BrowserAgent, userId: a.user.id };
+}
+
+function expected(access: Access, persona: Persona): "allowed" | 401 | 403 | 404 {
+  if (access === "public") return "allowed";
+  if (persona === "anonymous") return 401;
+  if (access === "user") return "allowed";
+  if (persona === "nonMember") return 404;
+  return RANK[persona] >= RANK[access] ? "allowed" : 403;
+}
+
+function mountedRoutes(server: TestServer): string[] {
+  const router = createApiRouter({ db: server.db, pool: server.pool, config: server.config, mailer: { send: async () => {}, close: () => {} } });
+  const out: string[] = [];
+  for (const layer of router.stack as { route?: { path: string; methods: Record<string, boolean> } }[]) {
+    if (!layer.route) continue;
+    for (const m of Object.keys(layer.route.methods)) out.push(`${m.toUpperCase()} ${layer.route.path}`);
+  }
+  return out;
+}
+
+let server: TestServer;
+let studyId: string;
+const agents = new Map<Persona, { agent: BrowserAgent; userId: string | null }>();
+
+beforeAll(async () => {
+  server = await startTestServer();
+  const owner = await signUpAgent(server);
+  studyId = (await owner.post("/api/v1/studies", { name: "Matrix Study" })).body.id;
+  agents.set("owner", { agent: owner, userId: owner.user.id });
+  for (const role of ["editor", "reviewer", "viewer"] as const) {
+    const a = await signUpAgent(server);
+    await server.db.insert(memberships).values({ studyId, userId: a.user.id, role });
+    agents.set(role, { agent: a, userId: a.user.id });
+  }
+  const outsider = await signUpAgent(server);
+  agents.set("nonMember", { agent: outsider, userId: outsider.user.id });
+});
+afterAll(async () => {
+  await server?.close();
+});
+
+describe("authorisation matrix", () => {
+  it("has an entry for every mounted route, and no entry for a route that is not mounted", () => {
+    const mounted = mountedRoutes(server);
+    expect(mounted.filter((r) => !(r in MATRIX))).toEqual([]);
+    expect(Object.keys(MATRIX).filter((r) => !mounted.includes(r))).toEqual([]);
+  });
+
+  for (const [route, entry] of Object.entries(MATRIX)) {
+    it(`${route} (${entry.access})`, async () => {
+      const [method, _path] = route.split(" ") as [string, string];
+      const outcomes: string[] = [];
+      for (const persona of PERSONAS) {
+        // Sign-out and sign-in change who the agent is: give those routes a fresh agent of the same persona.
+        const held = persona === "anonymous" ? { agent: await browserAgent(server), userId: null } : entry.ownAgent ? await freshAgent(persona) : agents.get(persona)!;
+        const ctx: Ctx = { server, studyId, persona, agent: held.agent, userId: held.userId };
+        const { path, body } = await entry.request(ctx);
+        const url = `/api/v1${path}`;
+        const m = method.toLowerCase() as "get" | "post" | "patch" | "delete" | "put";
+        const res = m === "get" ? await held.agent.get(url) : m === "delete" ? await held.agent.delete(url) : await held.agent[m](url, body);
+        const want = expected(entry.access, persona);
+        const ok = want === "allowed" ? ![401, 403].includes(res.status) && res.status < 500 && (res.status !== 404 || route.includes("made-up")) : res.status === want;
+        if (!ok) outcomes.push(`${persona}: got ${res.status} ${JSON.stringify(res.body)}, wanted ${want}`);
+        if (want === "allowed" && entry.access !== "public") expect(res.status, `${persona} ${route}`).toBeLessThan(300);
+      }
+      expect(outcomes).toEqual([]);
+    });
+  }
+});
