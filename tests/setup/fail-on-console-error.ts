@@ -1,16 +1,13 @@
 import { afterEach, beforeEach, vi } from "vitest";
 
-// An unexpected console.error in a test is a failure (STYLE.md).
-let errors: unknown[][] = [];
+// An unexpected console.error in a test is a failure (STYLE.md). A test that
+// expects one acknowledges it with `expectConsoleError()` from tests/helpers.
 beforeEach(() => {
-  errors = [];
-  vi.spyOn(console, "error").mockImplementation((...args: unknown[]) => {
-    errors.push(args);
-  });
+  vi.spyOn(console, "error").mockImplementation(() => {});
 });
 afterEach(() => {
+  const calls = vi.mocked(console.error).mock.calls;
+  const text = calls.map((a) => a.map((x) => (x instanceof Error ? x.stack : String(x))).join(" ")).join("\n");
   vi.mocked(console.error).mockRestore();
-  if (errors.length > 0) {
-    throw new Error(`console.error was called: ${errors.map((a) => a.map(String).join(" ")).join("\n")}`);
-  }
+  if (calls.length > 0) throw new Error(`console.error was called:\n${text}`);
 });
