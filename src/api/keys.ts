@@ -1,0 +1,35 @@
+/**
+ * Every TanStack Query key of the client, in one prefix hierarchy. A key is a
+ * prefix of everything beneath it, so invalidating `studies.detail(id)` also
+ * refreshes that Study's members, invitations, activity and life cycles.
+ * Build keys here; never retype them elsewhere.
+ */
+export const queryKeys = {
+  session: ["session"] as const,
+
+  account: {
+    all: ["account"] as const,
+    tokens: () => [...queryKeys.account.all, "tokens"] as const,
+  },
+
+  studies: {
+    all: ["studies"] as const,
+    list: () => [...queryKeys.studies.all, "list"] as const,
+    detail: (studyId: string) => [...queryKeys.studies.all, "detail", studyId] as const,
+    members: (studyId: string) => [...queryKeys.studies.detail(studyId), "members"] as const,
+    invitations: (studyId: string) => [...queryKeys.studies.detail(studyId), "invitations"] as const,
+    activity: (studyId: string) => [...queryKeys.studies.detail(studyId), "activity"] as const,
+    lifeCycles: (studyId: string) => [...queryKeys.studies.detail(studyId), "life-cycles"] as const,
+  },
+
+  /** Invitation previews are read before sign-in, keyed by their link token. */
+  invitations: {
+    all: ["invitations"] as const,
+    preview: (token: string) => [...queryKeys.invitations.all, token] as const,
+  },
+
+  devMail: ["dev", "mail"] as const,
+};
+
+/** Query keys whose data belongs to the signed-in person; dropped when the session starts or ends. */
+export const personalKeyPrefixes = [queryKeys.account.all, queryKeys.studies.all] as const;

@@ -1,0 +1,117 @@
+/**
+ * The one route object of the client (React Router data mode). Pages load
+ * lazily, one chunk per route; loaders here only fetch what a page needs
+ * before it shows and redirect where the session says so.
+ */
+import { type LoaderFunctionArgs, type RouteObject, createBrowserRouter, redirect } from "react-router";
+import { lifeCyclesQueryOptions } from "../api/life-cycles";
+import { membersQueryOptions } from "../api/members";
+import { queryClient } from "../api/query-client";
+import { sessionQueryOptions } from "../api/session";
+import { studiesQueryOptions, studyQueryOptions } from "../api/studies";
+import { AppShell } from "./app-shell";
+import { NotFoundPage } from "./not-found";
+import { paths, routePatterns, safeNext } from "./paths";
+import { RequireSession } from "./require-session";
+import { AppLoading, RootError, RouteError } from "./route-error";
+
+const session = () => queryClient.ensureQueryData(sessionQueryOptions());
+
+/** Sign-in, sign-up and forgot-password are for people who are not signed in. */
+async function guestOnly({ request }: LoaderFunctionArgs) {
+  const { user } = await session();
+  if (!user) return null;
+  const search = new URL(request.url).searchParams;
+  const invitation = search.get("invitation");
+  throw redirect(invitation ? paths.invitation(invitation) : (safeNext(search.get("next")) ?? paths.studies()));
+}
+
+export const routes: RouteObject[] = [
+  {
+    id: "root",
+    path: routePatterns.home,
+    loader: async () => {
+      await session(); // also sets the sw_csrf cookie every write needs
+      return null;
+    },
+    Component: AppShell,
+    ErrorBoundary: RootError,
+    HydrateFallback: AppLoading,
+    children: [
+      {
+        // Errors of any page show inside the app frame.
+        ErrorBoundary: RouteError,
+        children: [
+          {
+            index: true,
+            loader: async () => {
+              const { user } = await session();
+              throw redirect(user ? paths.studies() : paths.signIn());
+            },
+          },
+          {
+            path: routePatterns.signIn,
+            loader: guestOnly,
+            lazy: () => import("./sign-in").then((m) => ({ Component: m.SignInPage })),
+          },
+          {
+            path: routePatterns.signUp,
+            loader: guestOnly,
+            lazy: () => import("./sign-up").then((m) => ({ Component: m.SignUpPage })),
+          },
+          {
+            path: routePatterns.forgotPassword,
+            loader: guestOnly,
+            lazy: () => import("./forgot-password").then((m) => ({ Component: m.ForgotPasswordPage })),
+          },
+          {
+            path: routePatterns.resetPassword,
+            lazy: () => import("./reset-password").then((m) => ({ Component: m.ResetPasswordPage })),
+          },
+          {
+            path: routePatterns.invitation,
+            lazy: () => import("./accept-invitation").then((m) => ({ Component: m.AcceptInvitationPage })),
+          },
+          {
+            path: routePatterns.mailOutbox,
+            lazy: () => import("./mail-outbox").then((m) => ({ Component: m.MailOutboxPage })),
+          },
+          {
+            Component: RequireSession,
+            children: [
+              {
+                path: routePatterns.studies,
+                loader: () => {
+                  void queryClient.prefetchQuery(studiesQueryOptions());
+                  return null;
+                },
+                lazy: () => import("./studies").then((m) => ({ Component: m.StudiesPage })),
+              },
+              {
+                path: routePatterns.study,
+                loader: async ({ params }) => {
+                  const studyId = params.studyId ?? "";
+                  const { user } = await session();
+                  if (!user) return null; // RequireSession sends the person to sign-in
+                  void queryClient.prefetchQuery(lifeCyclesQueryOptions(studyId));
+                  void queryClient.prefetchQuery(membersQueryOptions(studyId));
+                  // Wait for the Study itself: a 404 shows the route's error page.
+                  await queryClient.ensureQueryData(studyQueryOptions(studyId));
+                  return null;
+                },
+                lazy: () => import("./study").then((m) => ({ Component: m.StudyPage })),
+              },
+              {
+                path: routePatterns.settings,
+                lazy: () => import("./settings").then((m) => ({ Component: m.SettingsPage })),
+              },
+            ],
+          },
+          { path: "*", Component: NotFoundPage },
+        ],
+      },
+    ],
+  },
+];
+
+export const router = createBrowserRouter(routes);
