@@ -42,7 +42,9 @@ CREATE TABLE "life_cycles" (
 	"created_by" uuid,
 	"updated_by" uuid,
 	"created_at" timestamp with time zone DEFAULT now() NOT NULL,
-	"updated_at" timestamp with time zone DEFAULT now() NOT NULL
+	"updated_at" timestamp with time zone DEFAULT now() NOT NULL,
+	"deleted_at" timestamp with time zone,
+	"deleted_by" uuid
 );
 --> statement-breakpoint
 CREATE TABLE "mail_outbox" (
@@ -78,6 +80,18 @@ CREATE TABLE "session" (
 	"expire" timestamp (6) NOT NULL
 );
 --> statement-breakpoint
+CREATE TABLE "snapshots" (
+	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
+	"life_cycle_id" uuid NOT NULL,
+	"number" integer NOT NULL,
+	"message" text NOT NULL,
+	"document" jsonb NOT NULL,
+	"schema_version" integer NOT NULL,
+	"life_cycle_version" integer NOT NULL,
+	"author_id" uuid,
+	"created_at" timestamp with time zone DEFAULT now() NOT NULL
+);
+--> statement-breakpoint
 CREATE TABLE "studies" (
 	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
 	"name" varchar(120) NOT NULL,
@@ -103,9 +117,12 @@ ALTER TABLE "invitations" ADD CONSTRAINT "invitations_invited_by_users_id_fk" FO
 ALTER TABLE "life_cycles" ADD CONSTRAINT "life_cycles_study_id_studies_id_fk" FOREIGN KEY ("study_id") REFERENCES "public"."studies"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "life_cycles" ADD CONSTRAINT "life_cycles_created_by_users_id_fk" FOREIGN KEY ("created_by") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "life_cycles" ADD CONSTRAINT "life_cycles_updated_by_users_id_fk" FOREIGN KEY ("updated_by") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "life_cycles" ADD CONSTRAINT "life_cycles_deleted_by_users_id_fk" FOREIGN KEY ("deleted_by") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "memberships" ADD CONSTRAINT "memberships_study_id_studies_id_fk" FOREIGN KEY ("study_id") REFERENCES "public"."studies"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "memberships" ADD CONSTRAINT "memberships_user_id_users_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."users"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "password_resets" ADD CONSTRAINT "password_resets_user_id_users_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."users"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "snapshots" ADD CONSTRAINT "snapshots_life_cycle_id_life_cycles_id_fk" FOREIGN KEY ("life_cycle_id") REFERENCES "public"."life_cycles"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "snapshots" ADD CONSTRAINT "snapshots_author_id_users_id_fk" FOREIGN KEY ("author_id") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "studies" ADD CONSTRAINT "studies_created_by_users_id_fk" FOREIGN KEY ("created_by") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 CREATE UNIQUE INDEX "api_tokens_hash_unique" ON "api_tokens" USING btree ("token_hash");--> statement-breakpoint
 CREATE INDEX "api_tokens_user_idx" ON "api_tokens" USING btree ("user_id");--> statement-breakpoint
@@ -116,4 +133,5 @@ CREATE INDEX "life_cycles_study_idx" ON "life_cycles" USING btree ("study_id");-
 CREATE INDEX "memberships_user_idx" ON "memberships" USING btree ("user_id");--> statement-breakpoint
 CREATE UNIQUE INDEX "password_resets_token_unique" ON "password_resets" USING btree ("token_hash");--> statement-breakpoint
 CREATE INDEX "IDX_session_expire" ON "session" USING btree ("expire");--> statement-breakpoint
+CREATE UNIQUE INDEX "snapshots_number_unique" ON "snapshots" USING btree ("life_cycle_id","number");--> statement-breakpoint
 CREATE UNIQUE INDEX "users_email_unique" ON "users" USING btree ("email");

@@ -15,6 +15,7 @@ import type { Mailer } from "./mail/mailer";
 import { accountRoutes } from "./routes/account";
 import { authRoutes } from "./routes/auth";
 import { devMailRoutes } from "./routes/dev-mail";
+import { lifeCycleRoutes } from "./routes/life-cycles";
 import { studyRoutes } from "./routes/studies";
 import { userForApiToken } from "./services/api-tokens";
 import { findUserById } from "./services/users";
@@ -38,6 +39,7 @@ export function createApiRouter(deps: AppDeps): Router {
   authRoutes(r, deps);
   accountRoutes(r, deps);
   studyRoutes(r, deps);
+  lifeCycleRoutes(r, deps);
   if (deps.config.mailOutbox) devMailRoutes(r, deps);
   return r;
 }

@@ -111,7 +111,7 @@ export function clusterPaths(name) {
 }
 
 /** Creates (first time) and starts a cluster on 127.0.0.1:port. Returns a stop function (a no-op if it was already running). */
-export function startCluster(bin, name, port) {
+export function startCluster(bin, name, port, { durable = true } = {}) {
   const p = clusterPaths(name);
   fs.mkdirSync(p.dir, { recursive: true });
   if (isRoot) execFileSync("chown", ["postgres:postgres", p.dir]);
@@ -129,7 +129,7 @@ export function startCluster(bin, name, port) {
     log(`PostgreSQL (${name}) is already running; using it.`);
     return { ...p, port, stop: () => {} };
   }
-  const opts = `-c listen_addresses=127.0.0.1 -p ${port} -k ${p.socket} -c max_connections=200 -c fsync=${name.includes("test") ? "off" : "on"}`;
+  const opts = `-c listen_addresses=127.0.0.1 -p ${port} -k ${p.socket} -c max_connections=200 -c fsync=${durable ? "on" : "off"}`;
   const r = asDbUser(path.join(bin, "pg_ctl"), ["-D", p.data, "-l", p.log, "-w", "-t", "60", "-o", opts, "start"], { quiet: true, allowFail: true });
   if (r.status !== 0) {
     const tail = fs.existsSync(p.log) ? fs.readFileSync(p.log, "utf8").split("\n").slice(-15).join("\n") : "";
@@ -173,8 +173,8 @@ export function runBin(pkgBin, args, env = {}) {
 }
 
 /** Builds the client when dist/ is missing or older than any client source. */
-export function ensureClientBuild({ force = false } = {}) {
-  const stamp = path.join(root, "dist", "index.html");
+export function ensureClientBuild({ force = false, outDir = "dist" } = {}) {
+  const stamp = path.join(root, outDir, "index.html");
   const newest = (p) => {
     const st = fs.statSync(p);
     if (!st.isDirectory()) return st.mtimeMs;
@@ -183,7 +183,7 @@ export function ensureClientBuild({ force = false } = {}) {
   const inputs = ["src", "shared", "index.html", "vite.config.ts", "tailwind.config.ts", "package-lock.json"].map((f) => path.join(root, f)).filter((f) => fs.existsSync(f));
   if (!force && fs.existsSync(stamp) && fs.statSync(stamp).mtimeMs >= Math.max(...inputs.map(newest))) return true;
   log("Building the client (vite build)…");
-  return runBin("vite/bin/vite.js", ["build", "--logLevel", "warn"]).status === 0;
+  return runBin("vite/bin/vite.js", ["build", "--logLevel", "warn", "--outDir", outDir, "--emptyOutDir"]).status === 0;
 }
 
 /** Stops what we started, once, on normal exit, Ctrl-C, SIGTERM or a crash. */

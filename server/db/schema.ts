@@ -161,6 +161,30 @@ export const lifeCycles = pgTable(
     updatedBy: uuid("updated_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+    /** Deleted life cycles stay recoverable for DELETED_LIFE_CYCLE_DAYS. */
+    deletedAt: timestamp("deleted_at", { withTimezone: true }),
+    deletedBy: uuid("deleted_by").references(() => users.id, { onDelete: "set null" }),
   },
   (t) => [index("life_cycles_study_idx").on(t.studyId)],
+);
+
+/** Immutable saved states of a life cycle. */
+export const snapshots = pgTable(
+  "snapshots",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    lifeCycleId: uuid("life_cycle_id")
+      .notNull()
+      .references(() => lifeCycles.id, { onDelete: "cascade" }),
+    /** 1, 2, 3… within the life cycle. */
+    number: integer("number").notNull(),
+    message: text("message").notNull(),
+    document: jsonb("document").notNull(),
+    schemaVersion: integer("schema_version").notNull(),
+    /** The life cycle's version the snapshot was taken at. */
+    lifeCycleVersion: integer("life_cycle_version").notNull(),
+    authorId: uuid("author_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("snapshots_number_unique").on(t.lifeCycleId, t.number)],
 );

@@ -27,7 +27,7 @@ export async function startTestServer(overrides: Partial<Config> = {}): Promise<
   const smtp = await startFakeSmtp(database.db, 0);
   const base = loadConfig({ NODE_ENV: "test", DATABASE_URL: database.url, SMTP_PORT: String(smtp.port) });
   const httpServer: { server?: Server } = {};
-  const config: Config = { ...base, staticDir: path.resolve("dist"), ...overrides };
+  const config: Config = { ...base, staticDir: path.resolve(process.env.STAGEWRIGHT_DIST ?? "dist"), ...overrides };
   const mailer = createMailer(config.smtp);
   // publicUrl depends on the port, known only after listen: links are built from config at request time.
   const app = createApp({ ...database, config, mailer });
