@@ -22,6 +22,26 @@ export const queryKeys = {
     lifeCycles: (studyId: string) => [...queryKeys.studies.detail(studyId), "life-cycles"] as const,
   },
 
+  /** One life cycle (the editor) and what hangs off it. */
+  lifeCycles: {
+    all: ["life-cycles"] as const,
+    detail: (lifeCycleId: string) => [...queryKeys.lifeCycles.all, lifeCycleId] as const,
+    snapshots: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "snapshots"] as const,
+  },
+
+  /** Snapshots by id (immutable: their documents never change). */
+  snapshots: {
+    all: ["snapshots"] as const,
+    detail: (snapshotId: string) => [...queryKeys.snapshots.all, snapshotId] as const,
+  },
+
+  /** Stateless analyses (POST /analyze), keyed by a fingerprint of the document and the options. */
+  analyze: {
+    all: ["analyze"] as const,
+    projection: (documentFingerprint: string, initial: readonly number[], steps: number) =>
+      [...queryKeys.analyze.all, "projection", documentFingerprint, initial, steps] as const,
+  },
+
   /** Invitation previews are read before sign-in, keyed by their link token. */
   invitations: {
     all: ["invitations"] as const,

@@ -1,0 +1,1 @@
+export { ExportPanel, type ExportPanelProps } from "./export-panel";

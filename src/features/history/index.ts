@@ -1,0 +1,1 @@
+export { HistoryPanel, type HistoryPanelProps } from "./history-panel";

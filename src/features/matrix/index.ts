@@ -1,0 +1,1 @@
+export { MatrixPanel } from "./matrix-panel";

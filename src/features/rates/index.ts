@@ -1,0 +1,1 @@
+export { RatesPanel } from "./rates-panel";

@@ -1,0 +1,1 @@
+export { ResultsPanel } from "./results-panel";
