@@ -3,8 +3,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Role } from "../../shared/schemas/studies";
 import { createApiRouter } from "../../server/app";
 import { sha256 } from "../../server/auth/secrets";
-import { invitations, memberships } from "../../server/db/schema";
+import { invitations, lifeCycles, memberships, snapshots } from "../../server/db/schema";
 import { createApiToken } from "../../server/services/api-tokens";
+import { threeStageLifeCycle } from "../factories/life-cycles";
 import { browserAgent, signUpAgent, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
 
 /**
@@ -41,13 +42,25 @@ async function freshMember(ctx: Ctx, role: Role = "viewer"): Promise<string> {
   await ctx.server.db.insert(memberships).values({ studyId: ctx.studyId, userId: a.user.id, role });
   return a.user.id;
 }
-async function freshInvitation(ctx: Ctx): Promise<{ id: string; token: string }> {
+async function freshInvitation(ctx: Ctx, studyId = ctx.studyId): Promise<{ id: string; token: string }> {
   const token = randomBytes(32).toString("base64url");
   const [row] = await ctx.server.db
     .insert(invitations)
-    .values({ studyId: ctx.studyId, email: `invitee-${unique()}@example.org`, role: "viewer", tokenHash: sha256(token), expiresAt: new Date(Date.now() + 86_400_000) })
+    .values({ studyId, email: `invitee-${unique()}@example.org`, role: "viewer", tokenHash: sha256(token), expiresAt: new Date(Date.now() + 86_400_000) })
     .returning();
   return { id: row!.id, token };
+}
+
+async function freshLifeCycle(ctx: Ctx, options: { deleted?: boolean } = {}): Promise<string> {
+  const [row] = await ctx.server.db
+    .insert(lifeCycles)
+    .values({ studyId: ctx.studyId, name: "LC", document: threeStageLifeCycle(), schemaVersion: 1, deletedAt: options.deleted ? new Date() : null })
+    .returning();
+  return row!.id;
+}
+async function freshSnapshot(ctx: Ctx, lifeCycleId: string): Promise<string> {
+  const [row] = await ctx.server.db.insert(snapshots).values({ lifeCycleId, number: 1, message: "s", document: threeStageLifeCycle(), schemaVersion: 1, lifeCycleVersion: 1 }).returning();
+  return row!.id;
 }
 
 const MATRIX: Record<string, Entry> = {
@@ -111,8 +124,32 @@ const MATRIX: Record<string, Entry> = {
   },
   "GET /studies/:studyId/activity": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}/activity` }) },
   "GET /invitations/:token": { access: "public", request: async (c) => ({ path: `/invitations/${(await freshInvitation(c)).token}` }) },
-  "POST /invitations/:token/accept": { access: "user", request: async (c) => ({ path: `/invitations/${(await freshInvitation(c)).token}/accept` }) },
+  // Accepting joins a Study: use another one, so the personas of the matrix Study stay as they are.
+  "POST /invitations/:token/accept": { access: "user", request: async (c) => ({ path: `/invitations/${(await freshInvitation(c, otherStudyId)).token}/accept` }) },
   "GET /dev/mail": { access: "public", request: async () => ({ path: "/dev/mail" }) },
+  "GET /studies/:studyId/life-cycles": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}/life-cycles` }) },
+  "POST /studies/:studyId/life-cycles": { access: "editor", request: async (c) => ({ path: `/studies/${c.studyId}/life-cycles`, body: { name: "New" } }) },
+  "GET /studies/:studyId/deleted-life-cycles": { access: "editor", request: async (c) => ({ path: `/studies/${c.studyId}/deleted-life-cycles` }) },
+  "POST /life-cycles/:lifeCycleId/undelete": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c, { deleted: true })}/undelete` }) },
+  "GET /life-cycles/:lifeCycleId": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}` }) },
+  "PUT /life-cycles/:lifeCycleId": {
+    access: "editor",
+    request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}`, body: { version: 1, document: threeStageLifeCycle({ name: "Saved" }) } }),
+  },
+  "DELETE /life-cycles/:lifeCycleId": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}` }) },
+  "POST /life-cycles/:lifeCycleId/duplicate": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/duplicate`, body: {} }) },
+  "GET /life-cycles/:lifeCycleId/analysis": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/analysis` }) },
+  "GET /life-cycles/:lifeCycleId/snapshots": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/snapshots` }) },
+  "POST /life-cycles/:lifeCycleId/snapshots": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/snapshots`, body: { message: "snap" } }) },
+  "GET /snapshots/:snapshotId": { access: "viewer", request: async (c) => ({ path: `/snapshots/${await freshSnapshot(c, await freshLifeCycle(c))}` }) },
+  "POST /life-cycles/:lifeCycleId/snapshots/:snapshotId/restore": {
+    access: "editor",
+    request: async (c) => {
+      const id = await freshLifeCycle(c);
+      return { path: `/life-cycles/${id}/snapshots/${await freshSnapshot(c, id)}/restore`, body: { version: 1 } };
+    },
+  },
+  "POST /analyze": { access: "user", request: async () => ({ path: "/analyze", body: { matrix: [[0.5, 1.2], [0.4, 0.8]] } }) },
 };
 
 async function freshAgent(persona: Role | "nonMember") {
@@ -141,12 +178,14 @@ function mountedRoutes(server: TestServer): string[] {
 
 let server: TestServer;
 let studyId: string;
+let otherStudyId: string;
 const agents = new Map<Persona, { agent: BrowserAgent; userId: string | null }>();
 
 beforeAll(async () => {
   server = await startTestServer();
   const owner = await signUpAgent(server);
   studyId = (await owner.post("/api/v1/studies", { name: "Matrix Study" })).body.id;
+  otherStudyId = (await owner.post("/api/v1/studies", { name: "Another Study" })).body.id;
   agents.set("owner", { agent: owner, userId: owner.user.id });
   for (const role of ["editor", "reviewer", "viewer"] as const) {
     const a = await signUpAgent(server);
