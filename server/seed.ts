@@ -1,11 +1,13 @@
 import { and, eq } from "drizzle-orm";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
+import { LIFE_CYCLE_SCHEMA_VERSION, LifeCycleSchema, type LifeCycle } from "../shared/lifecycle";
 import type { Role } from "../shared/schemas/studies";
 import { hashPassword } from "./auth/secrets";
 import { connect, type Db } from "./db/client";
-import { memberships, studies, users } from "./db/schema";
+import { lifeCycles, memberships, studies, users } from "./db/schema";
 import { recordEvent } from "./services/audit";
+import { takeSnapshot } from "./services/snapshots";
 
 /** Invented people, species and places: the demo must never pass for real data. */
 export const DEMO_PASSWORD = "stagewright-demo";
@@ -18,6 +20,60 @@ export const DEMO_STUDY_NAME = "Brannock fen newt — Brannock Fen and Kessel Ma
 const DEMO_STUDY_DESCRIPTION =
   "Demo data: an invented amphibian (the Brannock fen newt, Paludotriton brannockensis) at two invented wetland sites. " +
   "Fifteen years of pond counts and a few hundred marked individuals, used to show what Stagewright does. Nothing here describes a real population.";
+
+interface DemoSite {
+  name: string;
+  /** Egg-to-first-census survival, eft survival, subadult survival, maturation, adult survival, eggs per female. */
+  rates: { s_e: number; s_j: number; s_s: number; g: number; s_a: number; m: number };
+  se: { s_e: number; s_j: number; s_s: number; g: number; s_a: number; m: number };
+  marked: number;
+}
+
+/** Invented vital rates for the two invented sites (Brannock Fen grows; Kessel Marsh declines). */
+const DEMO_SITES: DemoSite[] = [
+  { name: "Brannock Fen", rates: { s_e: 0.035, s_j: 0.45, s_s: 0.6, g: 0.4, s_a: 0.76, m: 110 }, se: { s_e: 0.006, s_j: 0.05, s_s: 0.04, g: 0.06, s_a: 0.03, m: 14 }, marked: 212 },
+  { name: "Kessel Marsh", rates: { s_e: 0.03, s_j: 0.41, s_s: 0.56, g: 0.36, s_a: 0.7, m: 96 }, se: { s_e: 0.007, s_j: 0.06, s_s: 0.05, g: 0.07, s_a: 0.04, m: 17 }, marked: 143 },
+];
+
+function demoLifeCycle(site: DemoSite): LifeCycle {
+  const source = `${site.name} mark–recapture, 2012–2026 (${site.marked} marked newts; invented demo data)`;
+  const rate = (id: string, name: keyof DemoSite["rates"], notes: string, unit?: string) => ({
+    id,
+    name,
+    value: site.rates[name],
+    se: site.se[name],
+    notes,
+    source,
+    ...(unit ? { unit } : {}),
+  });
+  return LifeCycleSchema.parse({
+    stagewright: LIFE_CYCLE_SCHEMA_VERSION,
+    name: `${site.name} newts`,
+    census: "pre-breeding",
+    timeStepUnit: "year",
+    notes: "Pre-breeding census in early spring, females only. Invented demo data: not a real population.",
+    stages: [
+      { id: "st_eft", name: "Eft", position: { x: 80, y: 200 }, notes: "First-year juveniles on land" },
+      { id: "st_sub", name: "Subadult", position: { x: 340, y: 200 } },
+      { id: "st_adult", name: "Adult", position: { x: 600, y: 200 }, notes: "Breeding females" },
+    ],
+    rates: [
+      rate("vr_se", "s_e", "Survival from egg to the first spring census"),
+      rate("vr_sj", "s_j", "Annual survival of efts"),
+      rate("vr_ss", "s_s", "Annual survival of subadults"),
+      rate("vr_g", "g", "Probability a surviving subadult matures in a year"),
+      rate("vr_sa", "s_a", "Annual survival of adult females"),
+      rate("vr_m", "m", "Eggs laid per adult female per season", "eggs per female"),
+    ],
+    transitions: [
+      { id: "tr_eft_sub", from: "st_eft", to: "st_sub", kind: "growth", rate: "s_j" },
+      { id: "tr_sub_sub", from: "st_sub", to: "st_sub", kind: "stasis", rate: "s_s * (1 - g)" },
+      { id: "tr_sub_adult", from: "st_sub", to: "st_adult", kind: "growth", rate: "s_s * g" },
+      { id: "tr_adult_adult", from: "st_adult", to: "st_adult", kind: "stasis", rate: "s_a" },
+      { id: "tr_adult_eft", from: "st_adult", to: "st_eft", kind: "reproduction", rate: "m * 0.5 * s_e", notes: "Female eggs (sex ratio 1:1) surviving to the first census" },
+    ],
+  });
+}
 
 /** Creates the demo accounts and Study once; running it again changes nothing. */
 export async function seedDemo(db: Db): Promise<{ studyId: string; created: boolean }> {
@@ -39,6 +95,15 @@ export async function seedDemo(db: Db): Promise<{ studyId: string; created: bool
       if (u.role !== "owner") {
         await recordEvent(tx, { studyId, actorId: ids[u.email]!, action: "invitation.accepted", summary: `joined the Study as ${u.role}` });
       }
+    }
+    for (const site of DEMO_SITES) {
+      const document = demoLifeCycle(site);
+      const [lc] = await tx
+        .insert(lifeCycles)
+        .values({ studyId, name: document.name, document, schemaVersion: LIFE_CYCLE_SCHEMA_VERSION, createdBy: ids[DEMO_USERS[1]!.email]!, updatedBy: ids[DEMO_USERS[1]!.email]! })
+        .returning();
+      await recordEvent(tx, { studyId, actorId: ids[DEMO_USERS[1]!.email]!, action: "life_cycle.created", summary: `created the life cycle “${document.name}”`, details: { lifeCycleId: lc!.id } });
+      await takeSnapshot(tx, lc!.id, ids[DEMO_USERS[1]!.email]!, "Rates from the mark–recapture seasons 2012–2026");
     }
     return { studyId, created: true };
   });

@@ -1,0 +1,44 @@
+import { afterAll, beforeAll, expect, it } from "vitest";
+import { lifeCycles, memberships, studies, users } from "../../server/db/schema";
+import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from "../../server/seed";
+import { browserAgent, startTestServer, type TestServer } from "../helpers/server";
+
+let server: TestServer;
+beforeAll(async () => {
+  server = await startTestServer();
+});
+afterAll(async () => {
+  await server?.close();
+});
+
+it("seeds the demo once: a second run neither duplicates nor fails", async () => {
+  const first = await seedDemo(server.db);
+  const second = await seedDemo(server.db);
+  expect(first.created).toBe(true);
+  expect(second).toEqual({ studyId: first.studyId, created: false });
+  expect(await server.db.select().from(users)).toHaveLength(3);
+  expect(await server.db.select().from(studies)).toHaveLength(1);
+  expect(await server.db.select().from(memberships)).toHaveLength(3);
+  expect(await server.db.select().from(lifeCycles)).toHaveLength(2);
+});
+
+it("lets each demo account sign in with its role, and the demo life cycles analyse", async () => {
+  const { studyId } = await seedDemo(server.db);
+  for (const u of DEMO_USERS) {
+    const a = await browserAgent(server);
+    expect((await a.post("/api/v1/auth/sign-in", { email: u.email, password: DEMO_PASSWORD })).status).toBe(200);
+    expect((await a.get(`/api/v1/studies/${studyId}`)).body.role).toBe(u.role);
+    if (u.role !== "owner") continue;
+    const list = await a.get(`/api/v1/studies/${studyId}/life-cycles`);
+    const lambdas: Record<string, number> = {};
+    for (const lc of list.body) {
+      const res = await a.get(`/api/v1/life-cycles/${lc.id}/analysis`);
+      expect(res.status).toBe(200);
+      expect(res.body.isSound).toBe(true);
+      lambdas[lc.name] = res.body.lambda;
+    }
+    // The invented story: one site grows, the other declines.
+    expect(lambdas["Brannock Fen newts"]).toBeGreaterThan(1);
+    expect(lambdas["Kessel Marsh newts"]).toBeLessThan(1);
+  }
+});
