@@ -1,0 +1,87 @@
+/**
+ * The life-cycle document and its formulas: the public surface used by the
+ * client, the server and the tests. Pure code, no I/O.
+ */
+export {
+  LIFE_CYCLE_SCHEMA_VERSION,
+  MAX_STAGES,
+  MAX_RATES,
+  MAX_TRANSITIONS,
+  MAX_NAME_LENGTH,
+  MAX_NOTES_LENGTH,
+  MAX_SOURCE_LENGTH,
+  MAX_UNIT_LENGTH,
+  MAX_COORDINATE,
+  MAX_FORMULA_LENGTH,
+  MAX_RATE_NAME_LENGTH,
+  CENSUS_TIMINGS,
+  TRANSITION_KINDS,
+  LifeCycleSchema,
+  StageSchema,
+  VitalRateSchema,
+  TransitionSchema,
+  TransitionKindSchema,
+  CensusSchema,
+  ConfidenceIntervalSchema,
+  emptyLifeCycle,
+  type LifeCycle,
+  type LifeCycleInput,
+  type Stage,
+  type VitalRate,
+  type Transition,
+  type TransitionKind,
+  type Census,
+  type ConfidenceInterval,
+  type EmptyLifeCycleOptions,
+} from "./schema";
+export { newId, ID_PATTERN, type IdPrefix } from "./ids";
+export {
+  ageClassTemplate,
+  stageTemplate,
+  lifeCycleFromMatrix,
+  type TemplateOptions,
+  type AgeClassTemplateOptions,
+  type FromMatrixOptions,
+} from "./templates";
+export {
+  upgradeLifeCycle,
+  UPGRADE_STEPS,
+  LifeCycleUpgradeError,
+  type UpgradeStep,
+  type UpgradeOptions,
+  type RawDocument,
+  type LifeCycleUpgradeErrorCode,
+} from "./upgrade";
+export {
+  checkFormula,
+  compileFormula,
+  derivative,
+  formulaRateNames,
+  rateNameProblem,
+  FormulaCompileError,
+  FormulaEvaluationError,
+  FORMULA_FUNCTIONS,
+  FORMULA_CONSTANTS,
+  RESERVED_NAMES,
+  RATE_NAME_PATTERN,
+  MAX_FORMULA_DEPTH,
+  type CompiledFormula,
+  type FormulaCheck,
+  type FormulaError,
+  type FormulaErrorCode,
+  type FormulaFunction,
+} from "./formula";
+export {
+  buildMatrices,
+  compileLifeCycle,
+  vitalRateSensitivities,
+  LifeCycleFormulaError,
+  type CompiledLifeCycle,
+  type LifeCycleMatrices,
+  type MatrixEntry,
+  type ProjectionMatrices,
+  type RateValues,
+  type TransitionFormulaError,
+  type VitalRateSensitivity,
+} from "./matrices";
+export { matrixToCsv, parseMatrixCsv, type CsvDelimiter, type CsvIssue, type MatrixCsvResult } from "./csv";
