@@ -6,15 +6,7 @@
 import { checkFormula, rateNameProblem, type LifeCycle, type Transition } from "../../../shared/lifecycle";
 import type { Expr } from "../../../shared/lifecycle/formula";
 
-const NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
-
-/** A finite number typed as text ("0.25", "-1e-3", "1,5" with a decimal comma); null when it is not one. */
-export function parseNumberInput(text: string): number | null {
-  const t = text.trim().replace(/^(-?\d+),(\d+)$/, "$1.$2");
-  if (!NUMBER.test(t)) return null;
-  const v = Number(t);
-  return Number.isFinite(v) ? v : null;
-}
+export { parseNumberInput } from "../../lib/number-input";
 
 /** Why `name` cannot be the name of rate `rateId`, or null when it can. */
 export function rateNameError(doc: LifeCycle, rateId: string, name: string): string | null {
@@ -74,7 +66,7 @@ export function probabilityWarnings(doc: LifeCycle): Map<string, string> {
     const arrow = `${stageName.get(t.from) ?? "?"} → ${stageName.get(t.to) ?? "?"}`;
     warnings.set(
       r.id,
-      `${r.name} = ${r.value} multiplies the ${t.kind} arrow ${arrow}, so it acts as a probability, which lies between 0 and 1. ` +
+      `The ${t.kind} arrow ${arrow} multiplies by ${r.name}, so it acts as a probability and should lie between 0 and 1. ` +
         (r.value > 1 && r.value <= 100 ? "Was it typed as a percentage?" : "Check the value."),
     );
   }
