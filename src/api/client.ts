@@ -19,12 +19,15 @@ export class ApiError extends Error {
   readonly status: number;
   readonly code: string;
   readonly fields: FieldProblem[];
+  /** The whole error body, for answers that carry more than the error (a 409 sends the current state as `current`). */
+  readonly body: unknown;
 
-  constructor(status: number, code: string, message: string, fields: FieldProblem[] = []) {
+  constructor(status: number, code: string, message: string, fields: FieldProblem[] = [], body: unknown = null) {
     super(message);
     this.status = status;
     this.code = code;
     this.fields = fields;
+    this.body = body;
   }
 }
 
@@ -76,7 +79,7 @@ async function toApiError(response: Response): Promise<ApiError> {
   }
   if (isErrorBody(body)) {
     const { code, message, fields } = body.error;
-    return new ApiError(response.status, code ?? "error", message, fields ?? []);
+    return new ApiError(response.status, code ?? "error", message, fields ?? [], body);
   }
   const message =
     FALLBACK_MESSAGES[response.status] ??
@@ -129,7 +132,8 @@ export function segment(value: string): string {
 
 export const api = {
   get: <T>(path: string, signal?: AbortSignal) => request<T>("GET", path, undefined, signal),
-  post: <T>(path: string, body?: unknown) => request<T>("POST", path, body ?? {}),
+  post: <T>(path: string, body?: unknown, signal?: AbortSignal) => request<T>("POST", path, body ?? {}, signal),
   patch: <T>(path: string, body: unknown) => request<T>("PATCH", path, body),
+  put: <T>(path: string, body: unknown) => request<T>("PUT", path, body),
   delete: (path: string) => request<void>("DELETE", path),
 };

@@ -20,12 +20,17 @@ export const queryKeys = {
     invitations: (studyId: string) => [...queryKeys.studies.detail(studyId), "invitations"] as const,
     activity: (studyId: string) => [...queryKeys.studies.detail(studyId), "activity"] as const,
     lifeCycles: (studyId: string) => [...queryKeys.studies.detail(studyId), "life-cycles"] as const,
+    deletedLifeCycles: (studyId: string) => [...queryKeys.studies.detail(studyId), "deleted-life-cycles"] as const,
   },
 
-  /** One life cycle (the editor) and what hangs off it. */
+  /** One life cycle and what hangs off it; invalidating `detail(id)` refreshes its analysis and snapshots too. */
   lifeCycles: {
     all: ["life-cycles"] as const,
     detail: (lifeCycleId: string) => [...queryKeys.lifeCycles.all, lifeCycleId] as const,
+    /** The analysis of the saved document (GET /life-cycles/:id/analysis). */
+    analysis: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "analysis"] as const,
+    /** The live analysis of the editor's unsaved document at one of its revisions (POST /analyze). */
+    draftAnalysis: (lifeCycleId: string, revision: number) => [...queryKeys.lifeCycles.analysis(lifeCycleId), "draft", revision] as const,
     snapshots: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "snapshots"] as const,
   },
 
@@ -52,4 +57,4 @@ export const queryKeys = {
 };
 
 /** Query keys whose data belongs to the signed-in person; dropped when the session starts or ends. */
-export const personalKeyPrefixes = [queryKeys.account.all, queryKeys.studies.all] as const;
+export const personalKeyPrefixes = [queryKeys.account.all, queryKeys.studies.all, queryKeys.lifeCycles.all, queryKeys.snapshots.all, queryKeys.analyze.all] as const;

@@ -14,6 +14,7 @@ export const routePatterns = {
   invitation: "/invitations/:token",
   studies: "/studies",
   study: "/studies/:studyId",
+  lifeCycle: "/life-cycles/:lifeCycleId",
   settings: "/settings",
   mailOutbox: "/mail",
 } as const;
@@ -37,6 +38,7 @@ export const paths = {
   invitation: (token: string) => generatePath(routePatterns.invitation, { token }),
   studies: () => routePatterns.studies,
   study: (studyId: string) => generatePath(routePatterns.study, { studyId }),
+  lifeCycle: (lifeCycleId: string) => generatePath(routePatterns.lifeCycle, { lifeCycleId }),
   settings: () => routePatterns.settings,
   mailOutbox: () => routePatterns.mailOutbox,
 };

@@ -4,7 +4,7 @@
  * before it shows and redirect where the session says so.
  */
 import { type LoaderFunctionArgs, type RouteObject, createBrowserRouter, redirect } from "react-router";
-import { lifeCyclesQueryOptions } from "../api/life-cycles";
+import { lifeCycleQueryOptions, lifeCyclesQueryOptions } from "../api/life-cycles";
 import { membersQueryOptions } from "../api/members";
 import { queryClient } from "../api/query-client";
 import { sessionQueryOptions } from "../api/session";
@@ -100,6 +100,21 @@ export const routes: RouteObject[] = [
                   return null;
                 },
                 lazy: () => import("./study").then((m) => ({ Component: m.StudyPage })),
+              },
+              {
+                // The editor and its diagram and chart code load only when a life cycle is opened.
+                path: routePatterns.lifeCycle,
+                loader: async ({ params }) => {
+                  const lifeCycleId = params.lifeCycleId ?? "";
+                  const { user } = await session();
+                  if (!user) return null;
+                  // Always the newest version, so edits start from it; a 404 or 403 shows the
+                  // route's error page. The Study (for the role) follows the life cycle.
+                  const record = await queryClient.fetchQuery({ ...lifeCycleQueryOptions(lifeCycleId), staleTime: 0 });
+                  await queryClient.ensureQueryData(studyQueryOptions(record.studyId));
+                  return null;
+                },
+                lazy: () => import("./life-cycle-editor").then((m) => ({ Component: m.LifeCycleEditorPage })),
               },
               {
                 path: routePatterns.settings,

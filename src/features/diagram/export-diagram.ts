@@ -1,0 +1,136 @@
+/**
+ * The diagram as a standalone SVG file (and a PNG drawn from it), built from
+ * the document and the stage boxes with the same geometry as the screen, so
+ * no extra package and no copy of the page's DOM is needed.
+ */
+import type { LifeCycle } from "../../../shared/lifecycle";
+import type { StageReadout } from "./diagram-types";
+import { DEFAULT_STAGE_SIZE, type Rect, arrowGeometry, arrowLanes } from "./geometry";
+import { CLAY, DEFAULT_STAGE_COLOR, INK, PAPER, REPRODUCTION_DASH, SPRUCE } from "./palette";
+import { rateLabel } from "./rate-text";
+import { formatShare, formatValue } from "./readouts";
+
+const FONT = "'Atkinson Hyperlegible', system-ui, sans-serif";
+const MARGIN = 40;
+/** Room above and below the stages for loops and their labels. */
+const LOOP_ROOM = 80;
+
+function escapeXml(text: string): string {
+  return text.replace(/[<>&"']/g, (c) => ({ "<": "&lt;", ">": "&gt;", "&": "&amp;", '"': "&quot;", "'": "&apos;" })[c] ?? c);
+}
+
+/** Rough text width for label boxes (the font is not measured outside the page). */
+const textWidth = (text: string, size: number, bold = false) => text.length * size * (bold ? 0.6 : 0.55);
+
+export interface DiagramSvg {
+  svg: string;
+  width: number;
+  height: number;
+}
+
+export function diagramSvg(document: LifeCycle, sizes: ReadonlyMap<string, { width: number; height: number }>, readouts: ReadonlyMap<string, StageReadout> = new Map()): DiagramSvg {
+  const rects = new Map<string, Rect>();
+  for (const s of document.stages) {
+    const size = sizes.get(s.id) ?? DEFAULT_STAGE_SIZE;
+    rects.set(s.id, { x: s.position.x, y: s.position.y, width: size.width, height: size.height });
+  }
+  const all = [...rects.values()];
+  const minX = all.length ? Math.min(...all.map((r) => r.x)) - MARGIN - 40 : 0;
+  const minY = all.length ? Math.min(...all.map((r) => r.y)) - MARGIN - LOOP_ROOM : 0;
+  const maxX = all.length ? Math.max(...all.map((r) => r.x + r.width)) + MARGIN + 40 : 200;
+  const maxY = all.length ? Math.max(...all.map((r) => r.y + r.height)) + MARGIN + LOOP_ROOM : 100;
+  const width = Math.ceil(maxX - minX);
+  const height = Math.ceil(maxY - minY);
+
+  const lanes = arrowLanes(document.transitions, rects);
+  const arrows: string[] = [];
+  const labels: string[] = [];
+  for (const t of document.transitions) {
+    const source = rects.get(t.from);
+    const target = rects.get(t.to);
+    const lane = lanes.get(t.id);
+    if (!source || !target || !lane) continue;
+    const { path, label } = arrowGeometry(source, target, lane);
+    const reproduction = t.kind === "reproduction";
+    const color = reproduction ? CLAY : SPRUCE;
+    arrows.push(
+      `<path d="${path}" fill="none" stroke="${color}" stroke-width="2"${reproduction ? ` stroke-dasharray="${REPRODUCTION_DASH}"` : ""} marker-end="url(#sw-arrow-${reproduction ? "reproduction" : "survival"})"/>`,
+    );
+    const text = rateLabel(t.rate);
+    const w = textWidth(text, 12, true) + 10;
+    labels.push(
+      `<g><rect x="${(label.x - w / 2).toFixed(1)}" y="${(label.y - 10).toFixed(1)}" width="${w.toFixed(1)}" height="20" rx="4" fill="#ffffff" stroke="${color}"${reproduction ? ' stroke-dasharray="3 2"' : ""}/>` +
+        `<text x="${label.x.toFixed(1)}" y="${(label.y + 4).toFixed(1)}" text-anchor="middle" font-size="12" font-weight="700" fill="${INK}">${escapeXml(text)}</text></g>`,
+    );
+  }
+
+  const stages = document.stages.map((s) => {
+    const r = rects.get(s.id)!;
+    const readout = readouts.get(s.id);
+    const lines = readout && !readout.stale ? [`Stable share ${formatShare(readout.share)}`, `Repr. value ${formatValue(readout.value)}`] : [];
+    const nameY = lines.length ? r.y + 22 : r.y + r.height / 2 + 5;
+    return (
+      `<g><rect x="${r.x}" y="${r.y}" width="${r.width}" height="${r.height}" rx="8" fill="#ffffff" stroke="${INK}" stroke-opacity="0.35"/>` +
+      `<rect x="${r.x}" y="${r.y}" width="6" height="${r.height}" rx="3" fill="${s.color ?? DEFAULT_STAGE_COLOR}"/>` +
+      `<text x="${r.x + 16}" y="${nameY}" font-size="14" font-weight="700" fill="${INK}">${escapeXml(s.name)}</text>` +
+      lines.map((line, i) => `<text x="${r.x + 16}" y="${r.y + 40 + i * 15}" font-size="11" fill="${INK}">${escapeXml(line)}</text>`).join("") +
+      `</g>`
+    );
+  });
+
+  const marker = (id: string, color: string) =>
+    `<marker id="${id}" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="14" markerHeight="14" markerUnits="userSpaceOnUse" orient="auto-start-reverse"><path d="M0,0 L10,5 L0,10 z" fill="${color}"/></marker>`;
+
+  const svg =
+    `<?xml version="1.0" encoding="UTF-8"?>\n` +
+    `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="${minX} ${minY} ${width} ${height}" font-family="${FONT}">` +
+    `<title>${escapeXml(document.name)}: life-cycle diagram</title>` +
+    `<defs>${marker("sw-arrow-survival", SPRUCE)}${marker("sw-arrow-reproduction", CLAY)}</defs>` +
+    `<rect x="${minX}" y="${minY}" width="${width}" height="${height}" fill="${PAPER}"/>` +
+    `<g>${arrows.join("")}</g><g>${stages.join("")}</g><g>${labels.join("")}</g></svg>`;
+  return { svg, width, height };
+}
+
+/** Draws the SVG on a canvas at `scale` (2 for sharp prints) and returns a PNG. */
+export async function svgToPng({ svg, width, height }: DiagramSvg, scale = 2): Promise<Blob> {
+  const url = URL.createObjectURL(new Blob([svg], { type: "image/svg+xml" }));
+  try {
+    const image = new Image();
+    image.src = url;
+    await image.decode();
+    const canvas = window.document.createElement("canvas");
+    canvas.width = Math.ceil(width * scale);
+    canvas.height = Math.ceil(height * scale);
+    const context = canvas.getContext("2d");
+    if (!context) throw new Error("This browser cannot draw images for export.");
+    context.drawImage(image, 0, 0, canvas.width, canvas.height);
+    return await new Promise<Blob>((resolve, reject) =>
+      canvas.toBlob((blob) => (blob ? resolve(blob) : reject(new Error("The PNG could not be made."))), "image/png"),
+    );
+  } finally {
+    URL.revokeObjectURL(url);
+  }
+}
+
+/** Saves a blob as a file through the browser's download. */
+export function downloadBlob(blob: Blob, fileName: string): void {
+  const url = URL.createObjectURL(blob);
+  const link = window.document.createElement("a");
+  link.href = url;
+  link.download = fileName;
+  window.document.body.append(link);
+  link.click();
+  link.remove();
+  window.setTimeout(() => URL.revokeObjectURL(url), 10_000);
+}
+
+/** "Hillside newts" → "hillside-newts". */
+export function fileSlug(name: string): string {
+  const slug = name
+    .normalize("NFKD")
+    .replace(/[\u0300-\u036f]/g, "")
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, "-")
+    .replace(/^-+|-+$/g, "");
+  return slug.slice(0, 60) || "life-cycle";
+}
