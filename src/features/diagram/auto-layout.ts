@@ -17,7 +17,7 @@ export interface Size {
 export function layoutStages(document: LifeCycle, sizes: ReadonlyMap<string, Size>): Map<string, { x: number; y: number }> {
   const g = new dagre.graphlib.Graph({ multigraph: false });
   // Extra room between layers and rows for loops above and below and for arrow labels.
-  g.setGraph({ rankdir: "LR", nodesep: 110, ranksep: 120, marginx: 40, marginy: 80 });
+  g.setGraph({ rankdir: "LR", nodesep: 110, ranksep: 96, marginx: 40, marginy: 80 });
   g.setDefaultEdgeLabel(() => ({}));
   for (const s of document.stages) {
     const size = sizes.get(s.id) ?? DEFAULT_STAGE_SIZE;

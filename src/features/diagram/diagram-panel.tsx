@@ -31,7 +31,7 @@ import { diagramSvg, downloadBlob, fileSlug, svgToPng } from "./export-diagram";
 import { DEFAULT_STAGE_SIZE, type Rect, arrowLanes } from "./geometry";
 import { CLAY, REPRODUCTION_DASH, SPRUCE } from "./palette";
 import { rateLabel, rateToText } from "./rate-text";
-import { formatElasticity } from "./readouts";
+import { STALE_LONG, formatElasticity, staleReason } from "./readouts";
 import { INSPECTOR_FIRST_FIELD, StageInspector } from "./stage-inspector";
 import { StageNodeComponent } from "./stage-node";
 import { TransitionEdgeComponent } from "./transition-edge";
@@ -85,18 +85,23 @@ function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSe
   }, [notice]);
 
   // ---------------------------------------------------------------- analysis
+  const reason = staleReason(analysis);
   const readouts = useMemo(() => {
     const map = new Map<string, StageReadout>();
     const data = analysis.data;
     if (!data) return map;
     data.stageIds.forEach((id, i) => {
-      map.set(id, { share: data.stableStage?.[i] ?? null, value: data.reproductiveValue?.[i] ?? null, stale: analysis.stale });
+      map.set(id, { share: data.stableStage?.[i] ?? null, value: data.reproductiveValue?.[i] ?? null, stale: analysis.stale, staleReason: reason });
     });
     return map;
-  }, [analysis.data, analysis.stale]);
+  }, [analysis.data, analysis.stale, reason]);
 
   const elasticities = useMemo(() => arrowElasticities(document, analysis), [document, analysis]);
-  const maxElasticity = useMemo(() => Math.max(0, ...elasticities.values()), [elasticities]);
+  const maxElasticity = useMemo(() => {
+    let max = 0;
+    for (const e of elasticities.values()) if (e > max) max = e;
+    return max;
+  }, [elasticities]);
   const shading = shadeByElasticity && elasticities.size > 0 && maxElasticity > 0;
 
   /** Arrows whose rate the server could not compute, by index in the document (fields `document.transitions.N.rate`). */
@@ -334,12 +339,13 @@ function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSe
             <input type="checkbox" checked={shadeByElasticity} onChange={(event) => setShadeByElasticity(event.target.checked)} className="size-4 accent-indigo" />
             Shade arrows by elasticity
           </label>
-          <span className="ml-auto flex gap-2">
-            <Button size="sm" variant="secondary" onClick={() => void onExport("svg")} disabled={document.stages.length === 0}>
-              Download SVG
+          <span className="ml-auto flex items-center gap-1 text-sm font-bold" role="group" aria-label="Download the diagram">
+            <span aria-hidden="true">Download:</span>
+            <Button size="sm" variant="secondary" aria-label="Download the diagram as SVG" onClick={() => void onExport("svg")} disabled={document.stages.length === 0}>
+              SVG
             </Button>
-            <Button size="sm" variant="secondary" onClick={() => void onExport("png")} disabled={document.stages.length === 0}>
-              Download PNG
+            <Button size="sm" variant="secondary" aria-label="Download the diagram as PNG" onClick={() => void onExport("png")} disabled={document.stages.length === 0}>
+              PNG
             </Button>
           </span>
         </div>
@@ -351,7 +357,7 @@ function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSe
         {shading && (
           <p className="text-sm text-ink/80">
             Thicker, darker arrows have larger elasticity: a proportional change in their rate changes λ more.
-            {analysis.stale && <span className="font-bold text-ink"> Updating after your last change…</span>}
+            {analysis.stale && <span className="font-bold text-ink"> These are from before your last change: {STALE_LONG[reason]}.</span>}
           </p>
         )}
         {notice && (
@@ -413,7 +419,7 @@ function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSe
             transition={selectedTransition}
             readOnly={readOnly}
             computeProblem={computeProblems.get(selectedTransition.id) ?? null}
-            elasticity={selectedElasticity === undefined ? null : { value: selectedElasticity, stale: analysis.stale }}
+            elasticity={selectedElasticity === undefined ? null : { value: selectedElasticity, stale: analysis.stale, note: STALE_LONG[reason] }}
             onChange={onChange}
             onSelect={onSelect}
           />

@@ -1,6 +1,7 @@
 import type { Edge, Node } from "@xyflow/react";
 import type { TransitionKind } from "../../../shared/lifecycle";
 import type { Lane } from "./geometry";
+import type { StaleReason } from "./readouts";
 
 /** What a stage shows after analysis. */
 export interface StageReadout {
@@ -10,6 +11,8 @@ export interface StageReadout {
   value: number | null;
   /** The numbers describe an earlier version of the document. */
   stale: boolean;
+  /** Why, when stale. */
+  staleReason: StaleReason;
 }
 
 export type StageNodeData = {

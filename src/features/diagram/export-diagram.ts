@@ -11,9 +11,7 @@ import { rateLabel } from "./rate-text";
 import { formatShare, formatValue } from "./readouts";
 
 const FONT = "'Atkinson Hyperlegible', system-ui, sans-serif";
-const MARGIN = 40;
-/** Room above and below the stages for loops and their labels. */
-const LOOP_ROOM = 80;
+const MARGIN = 24;
 
 function escapeXml(text: string): string {
   return text.replace(/[<>&"']/g, (c) => ({ "<": "&lt;", ">": "&gt;", "&": "&amp;", '"': "&quot;", "'": "&apos;" })[c] ?? c);
@@ -34,23 +32,26 @@ export function diagramSvg(document: LifeCycle, sizes: ReadonlyMap<string, { wid
     const size = sizes.get(s.id) ?? DEFAULT_STAGE_SIZE;
     rects.set(s.id, { x: s.position.x, y: s.position.y, width: size.width, height: size.height });
   }
-  const all = [...rects.values()];
-  const minX = all.length ? Math.min(...all.map((r) => r.x)) - MARGIN - 40 : 0;
-  const minY = all.length ? Math.min(...all.map((r) => r.y)) - MARGIN - LOOP_ROOM : 0;
-  const maxX = all.length ? Math.max(...all.map((r) => r.x + r.width)) + MARGIN + 40 : 200;
-  const maxY = all.length ? Math.max(...all.map((r) => r.y + r.height)) + MARGIN + LOOP_ROOM : 100;
-  const width = Math.ceil(maxX - minX);
-  const height = Math.ceil(maxY - minY);
-
   const lanes = arrowLanes(document.transitions, rects);
   const arrows: string[] = [];
   const labels: string[] = [];
+  // Bounds: every stage box, every arrow's hull and every label box.
+  const xs: number[] = [];
+  const ys: number[] = [];
+  for (const r of rects.values()) {
+    xs.push(r.x, r.x + r.width);
+    ys.push(r.y, r.y + r.height);
+  }
   for (const t of document.transitions) {
     const source = rects.get(t.from);
     const target = rects.get(t.to);
     const lane = lanes.get(t.id);
     if (!source || !target || !lane) continue;
-    const { path, label } = arrowGeometry(source, target, lane);
+    const { path, label, hull } = arrowGeometry(source, target, lane);
+    for (const p of hull) {
+      xs.push(p.x);
+      ys.push(p.y);
+    }
     const reproduction = t.kind === "reproduction";
     const color = reproduction ? CLAY : SPRUCE;
     arrows.push(
@@ -58,6 +59,8 @@ export function diagramSvg(document: LifeCycle, sizes: ReadonlyMap<string, { wid
     );
     const text = rateLabel(t.rate);
     const w = textWidth(text, 12, true) + 10;
+    xs.push(label.x - w / 2, label.x + w / 2);
+    ys.push(label.y - 10, label.y + 10);
     labels.push(
       `<g><rect x="${(label.x - w / 2).toFixed(1)}" y="${(label.y - 10).toFixed(1)}" width="${w.toFixed(1)}" height="20" rx="4" fill="#ffffff" stroke="${color}"${reproduction ? ' stroke-dasharray="3 2"' : ""}/>` +
         `<text x="${label.x.toFixed(1)}" y="${(label.y + 4).toFixed(1)}" text-anchor="middle" font-size="12" font-weight="700" fill="${INK}">${escapeXml(text)}</text></g>`,
@@ -77,6 +80,14 @@ export function diagramSvg(document: LifeCycle, sizes: ReadonlyMap<string, { wid
       `</g>`
     );
   });
+
+  // Loops, not Math.min(...xs): a large life cycle has more points than a call takes arguments.
+  const low = (v: number[]) => v.reduce((m, x) => (x < m ? x : m), Infinity);
+  const high = (v: number[]) => v.reduce((m, x) => (x > m ? x : m), -Infinity);
+  const minX = xs.length ? Math.floor(low(xs)) - MARGIN : 0;
+  const minY = ys.length ? Math.floor(low(ys)) - MARGIN : 0;
+  const width = xs.length ? Math.ceil(high(xs)) + MARGIN - minX : 200;
+  const height = ys.length ? Math.ceil(high(ys)) + MARGIN - minY : 100;
 
   const marker = (id: string, color: string) =>
     `<marker id="${id}" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="14" markerHeight="14" markerUnits="userSpaceOnUse" orient="auto-start-reverse"><path d="M0,0 L10,5 L0,10 z" fill="${color}"/></marker>`;

@@ -28,6 +28,8 @@ export interface ArrowGeometry {
   path: string;
   /** Where the label sits: on the arrow, half way. */
   label: Point;
+  /** Points whose bounding box holds the whole path (its ends and turning points, or control points for loops). */
+  hull: Point[];
 }
 
 /** Size assumed for a stage box before it has been measured on screen. */
@@ -57,6 +59,22 @@ export function borderPoint(r: Rect, toward: Point, gap = GAP): Point {
 const round = (v: number) => Math.round(v * 10) / 10;
 const pt = (p: Point) => `${round(p.x)},${round(p.y)}`;
 
+/** Where a quadratic curve turns in x or in y (the points, besides its ends, that bound it). */
+function quadraticExtremes(p0: Point, p1: Point, p2: Point): Point[] {
+  const at = (t: number): Point => ({
+    x: (1 - t) * (1 - t) * p0.x + 2 * (1 - t) * t * p1.x + t * t * p2.x,
+    y: (1 - t) * (1 - t) * p0.y + 2 * (1 - t) * t * p1.y + t * t * p2.y,
+  });
+  const points: Point[] = [];
+  for (const axis of ["x", "y"] as const) {
+    const den = p0[axis] - 2 * p1[axis] + p2[axis];
+    if (den === 0) continue;
+    const t = (p0[axis] - p1[axis]) / den;
+    if (t > 0 && t < 1) points.push(at(t));
+  }
+  return points;
+}
+
 /** An arrow from one stage to another, straight or bent by its lane. */
 export function arrowBetween(source: Rect, target: Rect, offset: number, scaleWithLength: boolean): ArrowGeometry {
   const a = center(source);
@@ -68,7 +86,7 @@ export function arrowBetween(source: Rect, target: Rect, offset: number, scaleWi
   if (bend === 0) {
     const start = borderPoint(source, b);
     const end = borderPoint(target, a);
-    return { path: `M${pt(start)} L${pt(end)}`, label: { x: (start.x + end.x) / 2, y: (start.y + end.y) / 2 } };
+    return { path: `M${pt(start)} L${pt(end)}`, label: { x: (start.x + end.x) / 2, y: (start.y + end.y) / 2 }, hull: [start, end] };
   }
   // Right of the direction of travel, in screen coordinates (y grows downwards).
   const normal = { x: -dy / length, y: dx / length };
@@ -77,7 +95,7 @@ export function arrowBetween(source: Rect, target: Rect, offset: number, scaleWi
   const start = borderPoint(source, control);
   const end = borderPoint(target, control);
   const label = { x: 0.25 * start.x + 0.5 * control.x + 0.25 * end.x, y: 0.25 * start.y + 0.5 * control.y + 0.25 * end.y };
-  return { path: `M${pt(start)} Q${pt(control)} ${pt(end)}`, label };
+  return { path: `M${pt(start)} Q${pt(control)} ${pt(end)}`, label, hull: [start, end, ...quadraticExtremes(start, control, end)] };
 }
 
 /** A self-loop on the top (stasis) or bottom (reproduction) of a stage. */
@@ -93,9 +111,10 @@ export function selfLoop(r: Rect, side: "top" | "bottom"): ArrowGeometry {
   const c2 = { x: c.x + spread + 30, y: edge + sign * LOOP_HEIGHT * 1.33 };
   // A cubic curve's half-way point: (p0 + 3·c1 + 3·c2 + p3) / 8.
   const label = { x: c.x, y: edge + sign * LOOP_HEIGHT };
+  const hull = [start, c1, c2, end];
   return side === "top"
-    ? { path: `M${pt(start)} C${pt(c1)} ${pt(c2)} ${pt(end)}`, label }
-    : { path: `M${pt(end)} C${pt(c2)} ${pt(c1)} ${pt(start)}`, label };
+    ? { path: `M${pt(start)} C${pt(c1)} ${pt(c2)} ${pt(end)}`, label, hull }
+    : { path: `M${pt(end)} C${pt(c2)} ${pt(c1)} ${pt(start)}`, label, hull };
 }
 
 export function arrowGeometry(source: Rect, target: Rect, lane: Lane): ArrowGeometry {

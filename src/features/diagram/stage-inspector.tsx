@@ -7,7 +7,7 @@ import type { StageReadout } from "./diagram-types";
 import { KIND_LABELS, addTransition, allowedKinds, arrowName, recolourStage, removeElements, renameStage, stageNameProblem } from "./document-edits";
 import { DEFAULT_STAGE_COLOR, STAGE_COLORS } from "./palette";
 import { rateLabel } from "./rate-text";
-import { formatShare, formatValue } from "./readouts";
+import { STALE_LONG, formatShare, formatValue } from "./readouts";
 
 export const INSPECTOR_FIRST_FIELD = "diagram-inspector-first";
 
@@ -79,7 +79,7 @@ export function StageInspector({ document, stage, readOnly, readout, onChange, o
               const result = renameStage(document, stage.id, text);
               if (result.ok && text.trim() !== stage.name) onChange(result.document, "Rename stage");
             }}
-            onBlur={() => setNameDraft(null)}
+            onBlur={() => nameProblem === null && setNameDraft(null)}
             autoComplete="off"
           />
           <fieldset>
@@ -120,7 +120,7 @@ export function StageInspector({ document, stage, readOnly, readout, onChange, o
           <dd className="tabular-nums">{formatShare(readout.share)}</dd>
           <dt className="font-bold">Reproductive value</dt>
           <dd className="tabular-nums">{formatValue(readout.value)}</dd>
-          {readout.stale && <dd className="col-span-2 text-ink">From before your last change; updating…</dd>}
+          {readout.stale && <dd className="col-span-2 text-ink">From before your last change; {STALE_LONG[readout.staleReason]}</dd>}
         </dl>
       )}
 

@@ -1,7 +1,7 @@
 import { Handle, type NodeProps, Position, useConnection } from "@xyflow/react";
 import { memo } from "react";
 import type { StageNode } from "./diagram-types";
-import { formatShare, formatValue } from "./readouts";
+import { STALE_SHORT, formatShare, formatValue } from "./readouts";
 import { DEFAULT_STAGE_COLOR } from "./palette";
 
 /**
@@ -36,7 +36,7 @@ function StageNodeView({ data, selected }: NodeProps<StageNode>) {
             <dt>Repr. value</dt>
             <dd>{formatValue(readout.value)}</dd>
           </div>
-          {readout.stale && <div className="sw-stage-stale">updating…</div>}
+          {readout.stale && <div className="sw-stage-stale">{STALE_SHORT[readout.staleReason]}</div>}
         </dl>
       )}
       {/* Arrows need a source handle to attach to, so read-only stages keep an invisible one. */}

@@ -15,7 +15,7 @@ type TransitionInspectorProps = {
   /** Why the server could not compute this arrow's rate (from the latest analysis), if it could not. */
   computeProblem: string | null;
   /** The arrow's elasticity (share of λ's proportional response), when known. */
-  elasticity: { value: number; stale: boolean } | null;
+  elasticity: { value: number; stale: boolean; note: string } | null;
   onChange: (next: LifeCycle, label: string) => void;
   onSelect: (selection: Selection | null) => void;
 };
@@ -62,7 +62,8 @@ export function TransitionInspector({ document, transition, readOnly, computePro
             label="Rate"
             value={text}
             onChange={(event) => commitRate(event.target.value)}
-            onBlur={() => setRateDraft(null)}
+            // A rate that does not read stays in the field, with its problem, until it is fixed or replaced.
+            onBlur={() => reading.ok && setRateDraft(null)}
             error={reading.ok ? undefined : reading.message}
             description={
               reading.ok
@@ -123,7 +124,7 @@ export function TransitionInspector({ document, transition, readOnly, computePro
       {elasticity && (
         <p className={`text-sm ${elasticity.stale ? "text-ink/60" : ""}`}>
           <span className="font-bold">Elasticity of λ:</span> <span className="tabular-nums">{formatElasticity(elasticity.value)}</span>
-          {elasticity.stale && <span className="text-ink"> (from before your last change; updating…)</span>}
+          {elasticity.stale && <span className="text-ink"> (from before your last change; {elasticity.note})</span>}
         </p>
       )}
 
