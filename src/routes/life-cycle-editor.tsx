@@ -41,16 +41,17 @@ const ExportPanel = lazy(() => import("../features/export").then((m) => ({ defau
 type TabId = "diagram" | "rates" | "matrix" | "results" | "history" | "export";
 
 interface TabContext {
-  panel: EditorPanelProps;
+  /** The panel props for one tab (each tab gets its own `onSelect`). */
+  panel: (tab: TabId) => EditorPanelProps;
   history: HistoryPanelProps;
   exports: ExportPanelProps;
 }
 
 const TABS: readonly { id: TabId; label: string; render: (c: TabContext) => ReactNode }[] = [
-  { id: "diagram", label: "Diagram", render: (c) => <DiagramPanel {...c.panel} /> },
-  { id: "rates", label: "Rates", render: (c) => <RatesPanel {...c.panel} /> },
-  { id: "matrix", label: "Matrix", render: (c) => <MatrixPanel {...c.panel} /> },
-  { id: "results", label: "Results", render: (c) => <ResultsPanel {...c.panel} /> },
+  { id: "diagram", label: "Diagram", render: (c) => <DiagramPanel {...c.panel("diagram")} /> },
+  { id: "rates", label: "Rates", render: (c) => <RatesPanel {...c.panel("rates")} /> },
+  { id: "matrix", label: "Matrix", render: (c) => <MatrixPanel {...c.panel("matrix")} /> },
+  { id: "results", label: "Results", render: (c) => <ResultsPanel {...c.panel("results")} /> },
   { id: "history", label: "History", render: (c) => <HistoryPanel {...c.history} /> },
   { id: "export", label: "Export", render: (c) => <ExportPanel {...c.exports} /> },
 ];
@@ -81,8 +82,30 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
   );
   const { document } = editor;
 
+  const showTab = (index: number) =>
+    setSearch(
+      (params) => {
+        const next = new URLSearchParams(params);
+        if (index === 0) next.delete("tab");
+        else next.set("tab", TABS[index]?.id ?? "diagram");
+        return next;
+      },
+      { replace: true },
+    );
+
   const context: TabContext = {
-    panel: { document, onChange: editor.change, readOnly, analysis, selection, onSelect: setSelection },
+    panel: (tab) => ({
+      document,
+      onChange: editor.change,
+      readOnly,
+      analysis,
+      selection,
+      // A stage or arrow picked on another tab ("show in the diagram") is shown on the Diagram tab.
+      onSelect: (next) => {
+        setSelection(next);
+        if (tab !== "diagram" && (next?.kind === "stage" || next?.kind === "transition")) showTab(0);
+      },
+    }),
     history: { lifeCycleId: initial.id, version: editor.version, readOnly, onRestored: editor.reset },
     exports: { document, analysis },
   };
@@ -152,20 +175,7 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
         )}
       </header>
 
-      <TabGroup
-        selectedIndex={current}
-        onChange={(index) =>
-          setSearch(
-            (params) => {
-              const next = new URLSearchParams(params);
-              if (index === 0) next.delete("tab");
-              else next.set("tab", TABS[index]?.id ?? "diagram");
-              return next;
-            },
-            { replace: true },
-          )
-        }
-      >
+      <TabGroup selectedIndex={current} onChange={showTab}>
         <TabList aria-label="Life-cycle editor" className="flex flex-wrap gap-1 border-b border-ink/20">
           {TABS.map((t) => (
             <Tab key={t.id} className={tabClasses}>
