@@ -103,8 +103,10 @@ export function CellInspector({ document: doc, to, from, readOnly, valueOf, onEd
                           size="sm"
                           variant="secondary"
                           onClick={() => {
-                            const r = replaceFormulaWithNumber(doc, t.id, v);
-                            onEdit(r.document, r.label, `Replaced the formula ${String(t.rate)} with its value ${v}; the arrow no longer follows its vital rates.`);
+                            // 12 significant digits: 0.3 * 4.5 becomes 1.35, not 1.3499999999999999.
+                            const value = Number(v.toPrecision(12));
+                            const r = replaceFormulaWithNumber(doc, t.id, value);
+                            onEdit(r.document, r.label, `Replaced the formula ${String(t.rate)} with its value ${value}; the arrow no longer follows its vital rates.`);
                           }}
                         >
                           Replace formula with a number

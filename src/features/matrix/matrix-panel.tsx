@@ -5,7 +5,7 @@
  * removes it. Cells computed from formulas show the formula and are never
  * overwritten by typing: replacing a formula with a number is its own action.
  */
-import { useMemo, useState } from "react";
+import { type KeyboardEvent, useMemo, useState } from "react";
 import { buildMatrices, type LifeCycle, type Transition } from "../../../shared/lifecycle";
 import { CommitInput } from "../../components/ui/commit-input";
 import { CopyButton } from "../../components/ui/copy-button";
@@ -98,7 +98,7 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
         <p className="max-w-3xl text-sm text-ink/80">
           The projection matrix A built from the arrows. <strong>Rows are the stage at the next census (where an arrow goes); columns are the stage now (where it comes from).</strong> Entry a
           <sub>ij</sub> is the rate from column j to row i; A = U (survival, growth, stasis, shrinkage) + F (reproduction).
-          {inline && " Type a number into a cell and press Enter to create or change its arrow; 0 removes it."}
+          {inline && " Type a number into a cell and press Enter to create or change its arrow; 0 removes it. Arrow keys move between cells."}
         </p>
       </div>
 
@@ -183,6 +183,9 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
                           inputMode="decimal"
                           inputClassName={`text-right ${look ? "bg-white/85 text-ink" : ""}`}
                           onFocus={() => setActive({ to, from })}
+                          data-row={i}
+                          data-col={j}
+                          onKeyDown={moveBetweenCells}
                           check={(text) => {
                             const v = parseEntry(text);
                             if (v === null) return { error: "A number ≥ 0." };
@@ -199,6 +202,9 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
                       ) : (
                         <button
                           type="button"
+                          data-row={i}
+                          data-col={j}
+                          onKeyDown={moveBetweenCells}
                           onClick={() => setActive({ to, from })}
                           aria-label={`Entry from ${cellName}: ${describeCell(arrows, value)}${readOnly ? "" : ". Show or change its arrows"}`}
                           className="block w-full rounded px-1 py-0.5 text-right"
@@ -252,6 +258,31 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
       )}
     </section>
   );
+}
+
+/**
+ * Arrow keys move between cells like a spreadsheet: up and down always, left
+ * and right when the caret is at the edge of the text (or on a button).
+ */
+function moveBetweenCells(event: KeyboardEvent<HTMLElement>) {
+  const el = event.currentTarget;
+  const row = Number(el.dataset.row);
+  const col = Number(el.dataset.col);
+  const input = el instanceof HTMLInputElement ? el : null;
+  const atStart = !input || (input.selectionStart === 0 && input.selectionEnd === 0);
+  const atEnd = !input || (input.selectionStart === input.value.length && input.selectionEnd === input.value.length);
+  const step: Record<string, [number, number] | null> = {
+    ArrowUp: [-1, 0],
+    ArrowDown: [1, 0],
+    ArrowLeft: atStart ? [0, -1] : null,
+    ArrowRight: atEnd ? [0, 1] : null,
+  };
+  const d = step[event.key];
+  if (!d || event.defaultPrevented || event.altKey || event.ctrlKey || event.metaKey || event.shiftKey) return;
+  const target = el.closest("table")?.querySelector<HTMLElement>(`[data-row="${row + d[0]}"][data-col="${col + d[1]}"]`);
+  if (!target) return;
+  event.preventDefault();
+  target.focus();
 }
 
 function describeCell(arrows: Transition[], value: number): string {

@@ -116,7 +116,7 @@ export function ProjectionSection({ document: doc, stableStage }: { document: Li
       {result && summary && (
         <div className={`space-y-3 ${projection.isPlaceholderData ? "opacity-60" : ""}`}>
           <p className="text-sm">
-            From <strong className="tabular-nums">{formatNumber(summary.first, 4)}</strong> individuals now to <strong className="tabular-nums">{formatNumber(summary.last, 4)}</strong> after{" "}
+            From <strong className="tabular-nums">{formatNumber(summary.first, 4)}</strong> individuals now to <strong className="tabular-nums">{formatNumber(summary.last, 4)}</strong> individuals after{" "}
             {stepsWord(String(summary.steps), unit)}.{result.truncatedReason && ` ${result.truncatedReason}`}
           </p>
           <Suspense fallback={<Loading label="Loading the chart…" />}>
