@@ -131,7 +131,11 @@ export function analyzeMatrix(input: AnalyzeInput): MatrixAnalysis {
     nullReasons.reproductiveValue = "λ is shared by two separate groups of stages, so reproductive values are not unique.";
     nullReasons.sensitivity = "λ is a repeated eigenvalue (shared by two groups of stages) and has no derivative with respect to the entries.";
   } else if (!structure.irreducible && dominant && w !== null && v !== null) {
-    // Reducible with one dominant group: zeros that the graph makes exact.
+    // Reducible with one dominant group. The spectrum is the union of the
+    // diagonal blocks' spectra, so λ is that block's own radius (exact for a
+    // one-stage block such as long-lived post-breeders), and the graph makes
+    // some entries of w and v exactly zero.
+    lambda = dominant.spectralRadius;
     const down = reachableFrom(structure.graph(), dominant.stages, 0);
     const up = reachableFrom(structure.reverse(), dominant.stages, 0);
     let s = 0;

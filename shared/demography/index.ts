@@ -29,3 +29,36 @@ export {
 export { lifeHistory, type LifeHistory, type LifeHistoryOutcome } from "./life-history";
 export { project, transientIndices, DEFAULT_TRANSIENT_HORIZON, type Projection, type TransientIndices } from "./projection";
 export { MatrixInputError, MAX_STAGES, MAX_PROJECTION_STEPS } from "./input";
+export { Random, createRandom, logFactorial, MAX_SEED } from "./random";
+export { choleskyLower, CHOLESKY_PIVOT_TOLERANCE, type CholeskyResult } from "./cholesky";
+export {
+  simulateChunk,
+  mergeChunks,
+  growthRateApproximation,
+  defaultBurnIn,
+  wilsonInterval,
+  SimulationError,
+  FINAL_BINS_PER_DECADE,
+  FINAL_LOG10_MIN,
+  FINAL_LOG10_MAX,
+  FINAL_QUANTILES,
+  DISPLAY_BINS,
+  DEFAULT_MOMENT_SAMPLES,
+  MOMENT_STREAM,
+  MAX_DEMOGRAPHIC_COUNT,
+  Z95,
+  type StochasticModel,
+  type EnvironmentMatrices,
+  type SampledMatrices,
+  type MatrixSampler,
+  type MatrixRows,
+  type SimulationSettings,
+  type ChunkSpec,
+  type SimulationTuning,
+  type ChunkResult,
+  type FinalSummary,
+  type Moments,
+  type GrowthApproximation,
+  type ExtinctionPoint,
+  type StochasticResult,
+} from "./stochastic";

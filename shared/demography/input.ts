@@ -26,6 +26,11 @@ export class MatrixInputError extends Error {
   }
 }
 
+/** "1 entry", "3 entries". */
+function count(k: number, one: string, many: string): string {
+  return `${k} ${k === 1 ? one : many}`;
+}
+
 /** Words for a value that is not a finite number. */
 function describe(x: unknown): string {
   if (typeof x === "number") return Number.isNaN(x) ? "NaN" : x > 0 ? "Infinity" : "-Infinity";
@@ -58,13 +63,13 @@ export function readSquareMatrix(
     if (!Array.isArray(row)) throw new MatrixInputError(`${field} row ${i + 1} is not an array of numbers.`, field, [field, i]);
     if (row.length !== cols) {
       throw new MatrixInputError(
-        `${field} row ${i + 1} has ${row.length} entries but row 1 has ${cols}: every row must have the same length.`,
+        `${field} row ${i + 1} has ${count(row.length, "entry", "entries")} but row 1 has ${cols}: every row must have the same length.`,
         field,
         [field, i],
       );
     }
   }
-  if (cols !== n) throw new MatrixInputError(`${field} is not square: it has ${n} rows of ${cols} entries.`, field);
+  if (cols !== n) throw new MatrixInputError(`${field} is not square: it has ${count(n, "row", "rows")} of ${count(cols, "entry", "entries")}.`, field);
   if (size !== undefined && n !== size) {
     throw new MatrixInputError(`${field} must be ${size} × ${size} like A, but it is ${n} × ${n}.`, field);
   }
@@ -97,7 +102,7 @@ export function readStageNames(value: unknown, n: number): string[] {
   if (value === undefined) return Array.from({ length: n }, (_, i) => `stage ${i + 1}`);
   if (!Array.isArray(value)) throw new MatrixInputError("stageNames must be an array of strings.", "stageNames");
   if (value.length !== n) {
-    throw new MatrixInputError(`stageNames has ${value.length} names but A has ${n} stages.`, "stageNames");
+    throw new MatrixInputError(`stageNames has ${count(value.length, "name", "names")} but A has ${count(n, "stage", "stages")}.`, "stageNames");
   }
   return value.map((name: unknown, i) => {
     if (typeof name !== "string" || name.trim() === "") {
@@ -110,7 +115,7 @@ export function readStageNames(value: unknown, n: number): string[] {
 /** Check an initial population vector: n finite, non-negative numbers, not all zero. */
 export function readPopulationVector(value: unknown, n: number, field = "initial"): Float64Array {
   if (!Array.isArray(value)) throw new MatrixInputError(`${field} must be an array of ${n} numbers (one per stage).`, field);
-  if (value.length !== n) throw new MatrixInputError(`${field} has ${value.length} entries but A has ${n} stages.`, field);
+  if (value.length !== n) throw new MatrixInputError(`${field} has ${count(value.length, "entry", "entries")} but A has ${count(n, "stage", "stages")}.`, field);
   const out = new Float64Array(n);
   let total = 0;
   for (let i = 0; i < n; i++) {

@@ -7,6 +7,9 @@ import { matvec, vecmat, toArray } from "./matrix";
 import { readPopulationVector, readSquareMatrix, readStepCount, MAX_PROJECTION_STEPS } from "./input";
 import { dominantEigenDense } from "./eigen";
 
+/** Relative difference below which two population sizes count as the same extreme. */
+const SAME = 1e-9;
+
 /** Default horizon (projection intervals) for the transient maxima and bounds. */
 export const DEFAULT_TRANSIENT_HORIZON = 100;
 
@@ -137,19 +140,22 @@ export function transientIndicesDense(
       upper1 = cMax;
       lower1 = cMin;
     }
-    if (size > ampMax) {
+    // The first step at which an extreme is reached counts: a later one must
+    // beat it by more than rounding (λ itself carries ~1e-15 relative error,
+    // which compounds over the horizon in Âᵗ).
+    if (size > ampMax * (1 + SAME)) {
       ampMax = size;
       ampT = t;
     }
-    if (size < attMin) {
+    if (size < attMin * (1 - SAME)) {
       attMin = size;
       attT = t;
     }
-    if (cMax > upMax) {
+    if (cMax > upMax * (1 + SAME)) {
       upMax = cMax;
       upT = t;
     }
-    if (cMin < lowMin) {
+    if (cMin < lowMin * (1 - SAME)) {
       lowMin = cMin;
       lowT = t;
     }
