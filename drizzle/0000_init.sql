@@ -1,4 +1,5 @@
 CREATE TYPE "public"."role" AS ENUM('viewer', 'reviewer', 'editor', 'owner');--> statement-breakpoint
+CREATE TYPE "public"."run_status" AS ENUM('queued', 'running', 'succeeded', 'failed', 'cancelled');--> statement-breakpoint
 CREATE TABLE "api_tokens" (
 	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
 	"user_id" uuid NOT NULL,
@@ -74,6 +75,33 @@ CREATE TABLE "password_resets" (
 	"used_at" timestamp with time zone
 );
 --> statement-breakpoint
+CREATE TABLE "run_chunks" (
+	"run_id" uuid NOT NULL,
+	"chunk_index" integer NOT NULL,
+	"result" jsonb,
+	"attempts" integer DEFAULT 0 NOT NULL,
+	"finished_at" timestamp with time zone,
+	CONSTRAINT "run_chunks_run_id_chunk_index_pk" PRIMARY KEY("run_id","chunk_index")
+);
+--> statement-breakpoint
+CREATE TABLE "runs" (
+	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
+	"study_id" uuid NOT NULL,
+	"life_cycle_id" uuid,
+	"kind" varchar(40) NOT NULL,
+	"input" jsonb NOT NULL,
+	"settings" jsonb NOT NULL,
+	"status" "run_status" DEFAULT 'queued' NOT NULL,
+	"chunks_total" integer NOT NULL,
+	"chunks_done" integer DEFAULT 0 NOT NULL,
+	"result" jsonb,
+	"error" text,
+	"created_by" uuid,
+	"created_at" timestamp with time zone DEFAULT now() NOT NULL,
+	"started_at" timestamp with time zone,
+	"finished_at" timestamp with time zone
+);
+--> statement-breakpoint
 CREATE TABLE "session" (
 	"sid" varchar PRIMARY KEY NOT NULL,
 	"sess" json NOT NULL,
@@ -121,6 +149,10 @@ ALTER TABLE "life_cycles" ADD CONSTRAINT "life_cycles_deleted_by_users_id_fk" FO
 ALTER TABLE "memberships" ADD CONSTRAINT "memberships_study_id_studies_id_fk" FOREIGN KEY ("study_id") REFERENCES "public"."studies"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "memberships" ADD CONSTRAINT "memberships_user_id_users_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."users"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "password_resets" ADD CONSTRAINT "password_resets_user_id_users_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."users"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "run_chunks" ADD CONSTRAINT "run_chunks_run_id_runs_id_fk" FOREIGN KEY ("run_id") REFERENCES "public"."runs"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "runs" ADD CONSTRAINT "runs_study_id_studies_id_fk" FOREIGN KEY ("study_id") REFERENCES "public"."studies"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "runs" ADD CONSTRAINT "runs_life_cycle_id_life_cycles_id_fk" FOREIGN KEY ("life_cycle_id") REFERENCES "public"."life_cycles"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "runs" ADD CONSTRAINT "runs_created_by_users_id_fk" FOREIGN KEY ("created_by") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "snapshots" ADD CONSTRAINT "snapshots_life_cycle_id_life_cycles_id_fk" FOREIGN KEY ("life_cycle_id") REFERENCES "public"."life_cycles"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "snapshots" ADD CONSTRAINT "snapshots_author_id_users_id_fk" FOREIGN KEY ("author_id") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "studies" ADD CONSTRAINT "studies_created_by_users_id_fk" FOREIGN KEY ("created_by") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
@@ -132,6 +164,7 @@ CREATE INDEX "invitations_study_idx" ON "invitations" USING btree ("study_id");-
 CREATE INDEX "life_cycles_study_idx" ON "life_cycles" USING btree ("study_id");--> statement-breakpoint
 CREATE INDEX "memberships_user_idx" ON "memberships" USING btree ("user_id");--> statement-breakpoint
 CREATE UNIQUE INDEX "password_resets_token_unique" ON "password_resets" USING btree ("token_hash");--> statement-breakpoint
+CREATE INDEX "runs_life_cycle_idx" ON "runs" USING btree ("life_cycle_id","created_at");--> statement-breakpoint
 CREATE INDEX "IDX_session_expire" ON "session" USING btree ("expire");--> statement-breakpoint
 CREATE UNIQUE INDEX "snapshots_number_unique" ON "snapshots" USING btree ("life_cycle_id","number");--> statement-breakpoint
 CREATE UNIQUE INDEX "users_email_unique" ON "users" USING btree ("email");

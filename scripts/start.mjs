@@ -50,7 +50,7 @@ if (DEV) {
 }
 
 for (const child of children) watchExit(child);
-for (const [file, name] of [["server/mail/fake-smtp.ts", "mail fake"], ["server/index.ts", "web server"]]) {
+for (const [file, name] of [["server/mail/fake-smtp.ts", "mail fake"], ["server/worker.ts", "worker"], ["server/index.ts", "web server"]]) {
   const child = spawnTs(file, env, name, DEV && name === "web server" ? ["--watch"] : []);
   children.push(child);
   watchExit(child);

@@ -70,7 +70,9 @@ let failed = 0;
 if (fs.existsSync(report)) {
   const r = JSON.parse(fs.readFileSync(report, "utf8"));
   passed = r.numPassedTests;
-  failed = r.numFailedTests + (r.numFailedTestSuites ?? 0);
+  // A file that failed without a failing test (it did not load, or a hook threw) counts once.
+  const brokenFiles = r.testResults.filter((f) => f.status === "failed" && !f.assertionResults.some((a) => a.status === "failed")).length;
+  failed = r.numFailedTests + brokenFiles;
 } else {
   failed += 1; // the test runner itself did not report
 }

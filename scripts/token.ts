@@ -1,6 +1,6 @@
 // `npm run token -- <email> [name]`: mints a personal API token for scripts and administrators.
 // Needs the database that `npm start` runs (or DATABASE_URL).
-import { connect } from "../server/db/client";
+import { connect, databaseUrlFromEnv } from "../server/db/client";
 import { createApiToken } from "../server/services/api-tokens";
 import { findUserByEmail } from "../server/services/users";
 
@@ -9,7 +9,7 @@ if (!email) {
   console.error("Usage: npm run token -- <email> [token name]");
   process.exit(2);
 }
-const url = process.env.DATABASE_URL ?? `postgres://postgres@127.0.0.1:${process.env.STAGEWRIGHT_PG_PORT ?? 54329}/stagewright`;
+const url = databaseUrlFromEnv();
 const { db, pool } = connect(url, { max: 1 });
 try {
   const user = await findUserByEmail(db, email.trim().toLowerCase());

@@ -16,6 +16,9 @@ import { accountRoutes } from "./routes/account";
 import { authRoutes } from "./routes/auth";
 import { devMailRoutes } from "./routes/dev-mail";
 import { lifeCycleRoutes } from "./routes/life-cycles";
+import { runRoutes } from "./routes/runs";
+import type { RunKinds } from "./runs/kinds";
+import type { JobSender } from "./runs/queue";
 import { studyRoutes } from "./routes/studies";
 import { userForApiToken } from "./services/api-tokens";
 import { findUserById } from "./services/users";
@@ -23,6 +26,9 @@ import { findUserById } from "./services/users";
 export interface AppDeps extends Database {
   config: Config;
   mailer: Mailer;
+  /** What runs can compute, and the queue their chunks go to. */
+  kinds: RunKinds;
+  jobs: JobSender;
 }
 
 export const API_PREFIX = "/api/v1";
@@ -40,6 +46,7 @@ export function createApiRouter(deps: AppDeps): Router {
   accountRoutes(r, deps);
   studyRoutes(r, deps);
   lifeCycleRoutes(r, deps);
+  runRoutes(r, deps);
   if (deps.config.mailOutbox) devMailRoutes(r, deps);
   return r;
 }

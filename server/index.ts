@@ -4,12 +4,15 @@ import { createApp } from "./app";
 import { loadConfig } from "./config";
 import { connect } from "./db/client";
 import { createMailer } from "./mail/mailer";
+import { createJobSender } from "./runs/queue";
+import { RUN_KINDS } from "./runs/registry";
 
 const config = loadConfig();
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const database = connect(config.databaseUrl);
 const mailer = createMailer(config.smtp);
-const app = createApp({ ...database, config: { ...config, staticDir: config.staticDir ?? path.join(root, "dist") }, mailer });
+const jobs = createJobSender(config.databaseUrl);
+const app = createApp({ ...database, config: { ...config, staticDir: config.staticDir ?? path.join(root, "dist") }, mailer, kinds: RUN_KINDS, jobs });
 
 const server = app.listen(config.port, config.host, () => {
   console.log(`Stagewright web server on http://${config.host}:${config.port}`);
@@ -22,6 +25,7 @@ async function stop() {
   server.close();
   server.closeAllConnections();
   mailer.close();
+  await jobs.stop().catch(() => undefined);
   await database.pool.end().catch(() => undefined);
   process.exit(0);
 }

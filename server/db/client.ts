@@ -18,3 +18,8 @@ export function connect(databaseUrl: string, options: { max?: number } = {}): Da
   pool.on("error", (err) => console.warn(`PostgreSQL pool: ${err.message}`));
   return { db: drizzle(pool, { schema }), pool };
 }
+
+/** The database `npm start` runs, for commands started beside it (worker, token) without DATABASE_URL. */
+export function databaseUrlFromEnv(env: NodeJS.ProcessEnv = process.env): string {
+  return env.DATABASE_URL ?? `postgres://postgres@127.0.0.1:${env.STAGEWRIGHT_PG_PORT ?? 54329}/stagewright`;
+}

@@ -19,6 +19,8 @@ import { ROLES } from "../../shared/schemas/studies";
 const createdAt = () => timestamp("created_at", { withTimezone: true }).notNull().defaultNow();
 
 export const roleEnum = pgEnum("role", ROLES);
+export const RUN_STATUSES = ["queued", "running", "succeeded", "failed", "cancelled"] as const;
+export const runStatusEnum = pgEnum("run_status", RUN_STATUSES);
 
 export const users = pgTable(
   "users",
@@ -187,4 +189,46 @@ export const snapshots = pgTable(
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex("snapshots_number_unique").on(t.lifeCycleId, t.number)],
+);
+
+/** A background computation, split into chunk jobs on the pg-boss queue. */
+export const runs = pgTable(
+  "runs",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "cascade" }),
+    lifeCycleId: uuid("life_cycle_id").references(() => lifeCycles.id, { onDelete: "cascade" }),
+    kind: varchar("kind", { length: 40 }).notNull(),
+    /** Everything the run needs, frozen at start (documents included), so results can be reproduced. */
+    input: jsonb("input").notNull(),
+    /** The settings as the person entered them (shown when the run is reopened). */
+    settings: jsonb("settings").notNull(),
+    status: runStatusEnum("status").notNull().default("queued"),
+    chunksTotal: integer("chunks_total").notNull(),
+    chunksDone: integer("chunks_done").notNull().default(0),
+    result: jsonb("result"),
+    error: text("error"),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+    startedAt: timestamp("started_at", { withTimezone: true }),
+    finishedAt: timestamp("finished_at", { withTimezone: true }),
+  },
+  (t) => [index("runs_life_cycle_idx").on(t.lifeCycleId, t.createdAt)],
+);
+
+/** One row per chunk: a finished chunk keeps its partial result and is never computed again. */
+export const runChunks = pgTable(
+  "run_chunks",
+  {
+    runId: uuid("run_id")
+      .notNull()
+      .references(() => runs.id, { onDelete: "cascade" }),
+    chunkIndex: integer("chunk_index").notNull(),
+    result: jsonb("result"),
+    attempts: integer("attempts").notNull().default(0),
+    finishedAt: timestamp("finished_at", { withTimezone: true }),
+  },
+  (t) => [primaryKey({ columns: [t.runId, t.chunkIndex] })],
 );

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Role } from "../../shared/schemas/studies";
 import { createApiRouter } from "../../server/app";
 import { sha256 } from "../../server/auth/secrets";
-import { invitations, lifeCycles, memberships, snapshots } from "../../server/db/schema";
+import { invitations, lifeCycles, memberships, runs, snapshots } from "../../server/db/schema";
 import { createApiToken } from "../../server/services/api-tokens";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 import { browserAgent, signUpAgent, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
@@ -62,6 +62,13 @@ async function freshSnapshot(ctx: Ctx, lifeCycleId: string): Promise<string> {
   const [row] = await ctx.server.db.insert(snapshots).values({ lifeCycleId, number: 1, message: "s", document: threeStageLifeCycle(), schemaVersion: 1, lifeCycleVersion: 1 }).returning();
   return row!.id;
 }
+
+async function freshRun(ctx: Ctx): Promise<string> {
+  const lifeCycleId = await freshLifeCycle(ctx);
+  const [row] = await ctx.server.db.insert(runs).values({ studyId: ctx.studyId, lifeCycleId, kind: "risk", input: {}, settings: {}, chunksTotal: 1 }).returning();
+  return row!.id;
+}
+const riskSettings = (lifeCycleId: string) => ({ environment: { kind: "matrices", lifeCycleIds: [lifeCycleId], weights: [1] }, initial: [10, 5, 2], horizon: 5, replicates: 10, threshold: { value: 1 } });
 
 const MATRIX: Record<string, Entry> = {
   "GET /health": { access: "public", request: async () => ({ path: "/health" }) },
@@ -149,6 +156,16 @@ const MATRIX: Record<string, Entry> = {
       return { path: `/life-cycles/${id}/snapshots/${await freshSnapshot(c, id)}/restore`, body: { version: 1 } };
     },
   },
+  "GET /life-cycles/:lifeCycleId/runs": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/runs` }) },
+  "POST /life-cycles/:lifeCycleId/runs": {
+    access: "editor",
+    request: async (c) => {
+      const id = await freshLifeCycle(c);
+      return { path: `/life-cycles/${id}/runs`, body: { kind: "risk", settings: riskSettings(id) } };
+    },
+  },
+  "GET /runs/:runId": { access: "viewer", request: async (c) => ({ path: `/runs/${await freshRun(c)}` }) },
+  "POST /runs/:runId/cancel": { access: "editor", request: async (c) => ({ path: `/runs/${await freshRun(c)}/cancel` }) },
   "POST /analyze": { access: "user", request: async () => ({ path: "/analyze", body: { matrix: [[0.5, 1.2], [0.4, 0.8]] } }) },
 };
 
@@ -167,7 +184,7 @@ function expected(access: Access, persona: Persona): "allowed" | 401 | 403 | 404
 }
 
 function mountedRoutes(server: TestServer): string[] {
-  const router = createApiRouter({ db: server.db, pool: server.pool, config: server.config, mailer: { send: async () => {}, close: () => {} } });
+  const router = createApiRouter({ db: server.db, pool: server.pool, config: server.config, mailer: { send: async () => {}, close: () => {} }, kinds: {}, jobs: { sendChunks: async () => {}, stop: async () => {} } });
   const out: string[] = [];
   for (const layer of router.stack as { route?: { path: string; methods: Record<string, boolean> } }[]) {
     if (!layer.route) continue;

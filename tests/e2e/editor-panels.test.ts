@@ -268,6 +268,20 @@ describe("the editor's panels", () => {
       await page.getByRole("button", { name: "Project" }).click();
       await page.getByText(/From 100 individuals now to [\d.,]+ (× 10\S+ )?individuals after 50 years\./).waitFor();
       await page.getByRole("img", { name: /Projected numbers over 50 time steps/ }).waitFor();
+      await page.getByRole("checkbox", { name: "Log scale" }).check();
+      await page.getByText("individuals (log scale)").waitFor();
+      await page.screenshot({ path: ".data/e2e-projection.png", fullPage: true });
+
+      // A value that makes an arrow negative: the model cannot be analysed, and Results say so over the last good numbers.
+      await page.getByRole("tab", { name: "Rates" }).click();
+      const value = page.getByRole("textbox", { name: "Value of s_a" });
+      await value.fill("-0.5");
+      await value.press("Enter");
+      await page.getByRole("tab", { name: "Results" }).click();
+      await page.getByText("Last good result — the current model has an error:").waitFor();
+      await page.getByText(/Adult → Adult \(stasis\):/).waitFor();
+      expect(await page.getByTestId("lambda").innerText()).toBe(`λ = ${analysis.lambda.toFixed(4)}`);
+      expect(await page.locator("[data-stale]").count()).toBe(1);
     });
   });
 

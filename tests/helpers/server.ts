@@ -8,10 +8,14 @@ import { loadConfig, type Config } from "../../server/config";
 import { mailOutbox } from "../../server/db/schema";
 import { startFakeSmtp } from "../../server/mail/fake-smtp";
 import { createMailer } from "../../server/mail/mailer";
+import { createJobSender } from "../../server/runs/queue";
+import { RUN_KINDS } from "../../server/runs/registry";
 import { createTestDatabase } from "./db";
 
 export interface TestServer {
   url: string;
+  /** The test database's connection string (a worker process can be pointed at it). */
+  databaseUrl: string;
   app: ReturnType<typeof createApp>;
   db: Awaited<ReturnType<typeof createTestDatabase>>["db"];
   pool: Awaited<ReturnType<typeof createTestDatabase>>["pool"];
@@ -30,7 +34,8 @@ export async function startTestServer(overrides: Partial<Config> = {}): Promise<
   const config: Config = { ...base, staticDir: path.resolve(process.env.STAGEWRIGHT_DIST ?? "dist"), ...overrides };
   const mailer = createMailer(config.smtp);
   // publicUrl depends on the port, known only after listen: links are built from config at request time.
-  const app = createApp({ ...database, config, mailer });
+  const jobs = createJobSender(database.url);
+  const app = createApp({ ...database, config, mailer, kinds: RUN_KINDS, jobs });
   await new Promise<void>((resolve) => {
     httpServer.server = app.listen(0, "127.0.0.1", () => resolve());
   });
@@ -39,6 +44,7 @@ export async function startTestServer(overrides: Partial<Config> = {}): Promise<
   config.publicUrl = url;
   return {
     url,
+    databaseUrl: database.url,
     app,
     db: database.db,
     pool: database.pool,
@@ -57,6 +63,7 @@ export async function startTestServer(overrides: Partial<Config> = {}): Promise<
       httpServer.server?.closeAllConnections();
       await new Promise<void>((resolve) => httpServer.server!.close(() => resolve()));
       mailer.close();
+      await jobs.stop();
       await smtp.close();
       await database.drop();
     },

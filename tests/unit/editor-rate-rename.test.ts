@@ -1,7 +1,7 @@
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
-import { formulaRateNames, LifeCycleSchema, type LifeCycle } from "../../shared/lifecycle";
-import { formulaMentions, renameInFormula, renameRate } from "../../src/features/rates/rename-rate";
+import { buildMatrices, formulaRateNames, LifeCycleSchema, type LifeCycle } from "../../shared/lifecycle";
+import { formulaMentions, removeRateKeepingValues, renameInFormula, renameRate } from "../../src/features/rates/rename-rate";
 import { arrowsUsingRates, parseNumberInput, probabilityWarnings, rateNameError } from "../../src/features/rates/rate-checks";
 
 function lifeCycle(overrides: Partial<LifeCycle> = {}): LifeCycle {
@@ -130,5 +130,23 @@ describe("rate checks", () => {
     expect([...warnings.keys()].sort()).toEqual(["vr_sa", "vr_sj"]);
     expect(warnings.get("vr_sj")).toMatch(/Juvenile → Adult/);
     expect(warnings.get("vr_sj")).toMatch(/percentage/);
+  });
+});
+
+describe("removeRateKeepingValues", () => {
+  it("writes the removed rate's value into the formulas that used it, so the matrix is unchanged", () => {
+    const doc = lifeCycle({ rates: [...lifeCycle().rates.slice(0, 3), { id: "vr_m", name: "m", value: -1.5 }] });
+    const negative = removeRateKeepingValues(doc, "vr_m").document;
+    expect(negative.transitions.find((t) => t.id === "tr_3")!.rate).toBe("s_j*(-1.5)");
+
+    const before = lifeCycle();
+    const { document, changedArrows } = removeRateKeepingValues(before, "vr_sj");
+    expect(changedArrows).toEqual(["tr_1", "tr_3"]);
+    expect(document.rates.map((r) => r.name)).toEqual(["s_j2", "s_a", "m"]);
+    expect(document.transitions.map((t) => t.rate)).toEqual(["0.4 * s_j2", "s_a", "0.4*m"]);
+    expect(LifeCycleSchema.safeParse(document).success).toBe(true);
+    expect(buildMatrices(document).A).toEqual(buildMatrices(before).A);
+    // A formula that was only the rate becomes a number.
+    expect(removeRateKeepingValues(before, "vr_sa").document.transitions.find((t) => t.id === "tr_2")!.rate).toBe(0.8);
   });
 });

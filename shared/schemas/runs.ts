@@ -1,0 +1,35 @@
+import { z } from "zod";
+
+export const RUN_KINDS = ["risk"] as const;
+export const RunKindSchema = z.enum(RUN_KINDS, { error: `The run kind is one of: ${RUN_KINDS.join(", ")}.` });
+export type RunKindName = z.infer<typeof RunKindSchema>;
+
+/** Start a run on a life cycle; `settings` is checked by the kind's own schema (e.g. RiskSettingsSchema). */
+export const RunCreateSchema = z.strictObject({
+  kind: RunKindSchema,
+  settings: z.unknown(),
+});
+export type RunCreate = z.infer<typeof RunCreateSchema>;
+
+export type RunStatus = "queued" | "running" | "succeeded" | "failed" | "cancelled";
+
+export interface RunSummary {
+  id: string;
+  lifeCycleId: string | null;
+  kind: string;
+  status: RunStatus;
+  /** Share of chunks finished, 0–1. */
+  progress: number;
+  chunksDone: number;
+  chunksTotal: number;
+  settings: unknown;
+  error: string | null;
+  createdBy: string | null;
+  createdAt: string;
+  startedAt: string | null;
+  finishedAt: string | null;
+}
+
+export interface RunRecord<Result = unknown> extends RunSummary {
+  result: Result | null;
+}
