@@ -14,7 +14,7 @@ import type { EditorPanelProps } from "../../lib/editor-types";
 import { formatNumber, formatWithUncertainty } from "../../lib/number-format";
 import { CiEditor } from "./ci-editor";
 import { arrowsUsingRates, freshRateName, parseNumberInput, probabilityWarnings, rateNameError } from "./rate-checks";
-import { renameRate } from "./rename-rate";
+import { removeRateKeepingValues, renameRate } from "./rename-rate";
 
 type RateUpdate = Partial<Omit<VitalRate, "id">>;
 
@@ -76,8 +76,13 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection }: Edi
   }
 
   function remove(rate: VitalRate) {
-    onChange({ ...doc, rates: doc.rates.filter((r) => r.id !== rate.id) }, `Remove rate ${rate.name}`);
-    setStatus(`Removed the rate ${rate.name}.`);
+    const { document: next, changedArrows } = removeRateKeepingValues(doc, rate.id);
+    onChange(next, `Remove rate ${rate.name}`);
+    setStatus(
+      changedArrows.length === 0
+        ? `Removed the rate ${rate.name}.`
+        : `Removed the rate ${rate.name}; its value ${rate.value} now stands in ${changedArrows.length === 1 ? "1 formula" : `${changedArrows.length} formulas`}.`,
+    );
     setRemoving(null);
   }
 
@@ -312,12 +317,13 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection }: Edi
         onClose={() => setRemoving(null)}
         onConfirm={() => removing && remove(removing)}
         title={`Remove the rate ${removing?.name ?? ""}?`}
-        confirmLabel="Remove rate"
+        confirmLabel="Remove and keep the values"
       >
         {removing && (
           <p>
-            {(usage.get(removing.name) ?? []).length === 1 ? "One arrow uses" : `${(usage.get(removing.name) ?? []).length} arrows use`} <code>{removing.name}</code>. Their formulas will show an error until you
-            change them or add a rate with this name again. Undo brings the rate back.
+            {(usage.get(removing.name) ?? []).length === 1 ? "One arrow uses" : `${(usage.get(removing.name) ?? []).length} arrows use`} <code>{removing.name}</code>. Its value,{" "}
+            <span className="tabular-nums">{removing.value}</span>, will be written into their formulas in its place, so the matrix stays the same but no longer follows this rate. Undo
+            brings the rate back.
           </p>
         )}
       </ConfirmDialog>

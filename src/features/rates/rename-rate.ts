@@ -64,3 +64,28 @@ export function renameRate(doc: LifeCycle, rateId: string, newName: string): Rat
     changedArrows,
   };
 }
+
+/** A number as formula text: negative values in parentheses, so `2 * -0.5` never happens. */
+function numberLiteral(value: number): string {
+  const text = String(value);
+  return value < 0 ? `(${text})` : text;
+}
+
+/**
+ * Removes the vital rate `rateId` and writes its value into every formula
+ * that used it, so the arrows keep their values and the document stays valid.
+ */
+export function removeRateKeepingValues(doc: LifeCycle, rateId: string): RateRename {
+  const rate = doc.rates.find((r) => r.id === rateId);
+  if (rate === undefined) return { document: doc, changedArrows: [] };
+  const literal = numberLiteral(rate.value);
+  const changedArrows: string[] = [];
+  const transitions = doc.transitions.map((t) => {
+    if (typeof t.rate !== "string" || !formulaMentions(t.rate, rate.name)) return t;
+    changedArrows.push(t.id);
+    const formula = renameInFormula(t.rate, rate.name, literal);
+    // A formula that was just the rate becomes a plain number.
+    return { ...t, rate: formula.trim() === literal ? rate.value : formula };
+  });
+  return { document: { ...doc, rates: doc.rates.filter((r) => r.id !== rateId), transitions }, changedArrows };
+}

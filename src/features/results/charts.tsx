@@ -176,7 +176,8 @@ export function ProjectionChart({ stageNames, population, total, logScale, timeS
     yAxis: {
       type: logScale ? "log" : "value",
       name: logScale ? "individuals (log scale)" : "individuals",
-      nameTextStyle: axisName,
+      // Left-aligned over the axis, so the name is never cut at the chart's edge.
+      nameTextStyle: { ...axisName, align: "left" },
       axisLabel: { formatter: fmt },
       splitLine: { lineStyle: { color: "#d9d6cf" } },
     },
