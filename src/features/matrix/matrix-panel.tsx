@@ -99,6 +99,8 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
           The projection matrix A built from the arrows. <strong>Rows are the stage at the next census (where an arrow goes); columns are the stage now (where it comes from).</strong> Entry a
           <sub>ij</sub> is the rate from column j to row i; A = U (survival, growth, stasis, shrinkage) + F (reproduction).
           {inline && " Type a number into a cell and press Enter to create or change its arrow; 0 removes it. Arrow keys move between cells."}
+          {!readOnly && !inline && ` With more than ${INLINE_EDIT_MAX_STAGES} stages, choose a cell to change its arrows below the matrix.`}
+          {readOnly && " Choose a cell to see the arrows behind it."}
         </p>
       </div>
 
@@ -109,7 +111,7 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
           {!elasticity && <span className="text-ink/70">(after a successful analysis)</span>}
           {shaded && analysis.stale && <span className="text-ink/70">(from the last result)</span>}
         </label>
-        {!readOnly && (
+        {inline && (
           <fieldset className="inline-flex flex-wrap items-center gap-3">
             <legend className="sr-only">Kind of arrow a number typed into an empty cell creates</legend>
             <span aria-hidden="true" className="font-bold">
@@ -140,7 +142,7 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
           <caption className="sr-only">Projection matrix A: rows are the stage at t+1 (to), columns the stage at t (from)</caption>
           <thead>
             <tr>
-              <td className="px-2 pb-1 text-xs text-ink/75">
+              <td className="px-2 pb-1 text-xs whitespace-nowrap text-ink/75">
                 <span className="block text-right">from (t) →</span>
                 <span className="block">to (t+1) ↓</span>
               </td>
@@ -154,7 +156,7 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
           <tbody>
             {m.stageIds.map((to, i) => (
               <tr key={to}>
-                <th scope="row" className="max-w-40 py-1 pr-3 text-right font-bold break-words">
+                <th scope="row" className="max-w-48 min-w-28 py-1 pr-3 text-right font-bold break-words">
                   {m.stageNames[i]}
                 </th>
                 {m.stageIds.map((from, j) => {
