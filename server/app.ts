@@ -104,7 +104,8 @@ export function createApp(deps: AppDeps): Express {
     const dir = config.staticDir;
     app.use(express.static(dir, { index: false, maxAge: "1h" }));
     // Single-page app: every other path is the client's (Express 5 spells the wildcard this way).
-    app.get("/{*splat}", (_req, res) => res.sendFile(path.join(dir, "index.html")));
+    // `root` keeps a build folder under a dot-folder (e.g. .data/dist in tests) servable.
+    app.get("/{*splat}", (_req, res) => res.sendFile("index.html", { root: dir }));
   }
   app.use(errorHandler);
   return app;
