@@ -5,7 +5,11 @@ import { LIFE_CYCLE_SCHEMA_VERSION, LifeCycleSchema, type LifeCycle } from "../s
 import type { Role } from "../shared/schemas/studies";
 import { hashPassword } from "./auth/secrets";
 import { connect, type Db } from "./db/client";
-import { lifeCycles, memberships, studies, users } from "./db/schema";
+import { lifeCycles, memberships, runs, studies, users } from "./db/schema";
+import type { JobSender } from "./runs/queue";
+import { createJobSender } from "./runs/queue";
+import { RUN_KINDS } from "./runs/registry";
+import { createRun } from "./runs/service";
 import { recordEvent } from "./services/audit";
 import { takeSnapshot } from "./services/snapshots";
 
@@ -109,9 +113,46 @@ export async function seedDemo(db: Db): Promise<{ studyId: string; created: bool
   });
 }
 
+/**
+ * Queues the demo's Risk run on the declining site unless it has one; the
+ * worker that `npm start` runs computes it like any other run.
+ */
+export async function seedDemoRun(db: Db, jobs: JobSender, studyId: string): Promise<boolean> {
+  const [lc] = await db.select().from(lifeCycles).where(and(eq(lifeCycles.studyId, studyId), eq(lifeCycles.name, "Kessel Marsh newts")));
+  if (!lc) return false;
+  const [existing] = await db.select({ id: runs.id }).from(runs).where(eq(runs.lifeCycleId, lc.id)).limit(1);
+  if (existing) return false;
+  const [editor] = await db.select({ id: users.id }).from(users).where(eq(users.email, DEMO_USERS[1]!.email));
+  await createRun(db, { kinds: RUN_KINDS, jobs }, { studyId, lifeCycleId: lc.id }, editor!.id, {
+    kind: "risk",
+    settings: {
+      environment: {
+        kind: "vital-rates",
+        rates: [
+          { rateId: "vr_se", distribution: "beta", mean: 0.03, sd: 0.012 },
+          { rateId: "vr_sa", distribution: "beta", mean: 0.7, sd: 0.08 },
+          { rateId: "vr_m", distribution: "lognormal", mean: 96, sd: 25 },
+        ],
+        correlations: [{ a: "vr_se", b: "vr_sa", r: 0.4 }],
+      },
+      demographic: true,
+      initial: [120, 85, 75],
+      horizon: 100,
+      replicates: 5000,
+      threshold: { value: 20 },
+      seed: 20261201,
+    },
+  });
+  return true;
+}
+
 if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
-  const { db, pool } = connect(process.env.DATABASE_URL ?? "", { max: 2 });
-  const { created } = await seedDemo(db);
+  const url = process.env.DATABASE_URL ?? "";
+  const { db, pool } = connect(url, { max: 2 });
+  const jobs = createJobSender(url);
+  const { created, studyId } = await seedDemo(db);
   console.log(created ? "Demo Study created." : "Demo Study already present.");
+  if (await seedDemoRun(db, jobs, studyId)) console.log("Demo Risk run queued: the worker computes it in the background.");
+  await jobs.stop();
   await pool.end();
 }

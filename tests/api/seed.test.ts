@@ -1,6 +1,9 @@
 import { afterAll, beforeAll, expect, it } from "vitest";
-import { lifeCycles, memberships, studies, users } from "../../server/db/schema";
-import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from "../../server/seed";
+import { eq } from "drizzle-orm";
+import { lifeCycles, memberships, runs, studies, users } from "../../server/db/schema";
+import { createJobSender } from "../../server/runs/queue";
+import { DEMO_PASSWORD, DEMO_USERS, seedDemo, seedDemoRun } from "../../server/seed";
+import { startWorker } from "../helpers/worker";
 import { browserAgent, startTestServer, type TestServer } from "../helpers/server";
 
 let server: TestServer;
@@ -42,3 +45,24 @@ it("lets each demo account sign in with its role, and the demo life cycles analy
     expect(lambdas["Kessel Marsh newts"]).toBeLessThan(1);
   }
 });
+
+it("queues the demo Risk run once, and the real worker finishes it", async () => {
+  const { studyId } = await seedDemo(server.db);
+  const jobs = createJobSender(server.databaseUrl);
+  const worker = startWorker(server.databaseUrl);
+  try {
+    expect(await seedDemoRun(server.db, jobs, studyId)).toBe(true);
+    expect(await seedDemoRun(server.db, jobs, studyId)).toBe(false);
+    const [run] = await server.db.select().from(runs);
+    const until = Date.now() + 240_000;
+    let status = run!.status;
+    while (status !== "succeeded" && status !== "failed" && Date.now() < until) {
+      await new Promise((r) => setTimeout(r, 250));
+      status = (await server.db.select().from(runs).where(eq(runs.id, run!.id)))[0]!.status;
+    }
+    expect(status).toBe("succeeded");
+  } finally {
+    await worker.stop();
+    await jobs.stop();
+  }
+}, 300_000);
