@@ -15,12 +15,13 @@ export const MAX_REPLICATES = 100_000;
 /** Longest horizon (years = projection intervals). */
 export const MAX_HORIZON = 1_000;
 /**
- * Most work in one Run, in units of replicates × years × stages². One unit
- * is about one multiply-add of a dense projection; 2e10 units is about 20
- * s to 2 min of one worker on the 2-core reference machine for matrix
- * selection (e.g. 20,000 replicates × 1,000 years × 1,000 = 32-stage
- * matrices), more with vital-rate draws or demographic stochasticity. The
- * benchmark case (10,000 × 100 × 10²) is 1e8.
+ * Most work in one Run, in units of replicates × years × stages² (about one
+ * multiply-add of a dense projection each). 2e10 units take about 20 s of one
+ * worker for matrix selection on the 2-core reference machine (e.g. 10,000
+ * replicates × 500 years × 60 stages), a few minutes with a ceiling or
+ * demographic stochasticity, and longer with vital-rate draws, whose cost
+ * grows with the number of arrows (see shared/risk/plan.ts); the chunk plan
+ * spreads it over workers. The benchmark case (10,000 × 100 × 10²) is 1e8.
  */
 export const MAX_WORK = 2e10;
 /** Most environments (life cycles) in a matrix set or Markov chain. */
