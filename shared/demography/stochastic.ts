@@ -304,6 +304,7 @@ export const MOMENT_STREAM = 2 ** 52;
 /** Largest count per stage with demographic stochasticity (integer draws stay exact below 2^53). */
 export const MAX_DEMOGRAPHIC_COUNT = 1e15;
 const RESCALE_HIGH = 2 ** 600;
+const LOG10_2 = Math.log10(2);
 const RESCALE_LOW = 2 ** -600;
 const FORMAT = "stagewright-risk-chunk-1" as const;
 
@@ -688,7 +689,7 @@ function recordReplicate(acc: Accumulators, final: number, log10Final: number, g
   acc.finalM2 += d * (final - acc.finalMean);
   if (final < acc.finalMin) acc.finalMin = final;
   if (final > acc.finalMax) acc.finalMax = final;
-  if (final === 0) acc.zero += 1;
+  if (log10Final === -Infinity) acc.zero += 1;
   else if (log10Final < FINAL_LOG10_MIN) acc.below += 1;
   else if (log10Final >= FINAL_LOG10_MAX) acc.above += 1;
   else {
@@ -736,6 +737,7 @@ function runLinearSets(p: Prepared, s: CheckedSettings, burnIn: number, rng: Ran
   for (let r = 0; r < count; r++) {
     x.set(initial);
     let scale = 1;
+    let ex = 0; // true abundance = x · 2^ex (scale = 2^ex, which may under- or overflow; ex does not)
     let thr = threshold;
     let extinct = startBelow;
     if (startBelow) firstPassage[0] = firstPassage[0]! + 1;
@@ -809,19 +811,20 @@ function runLinearSets(p: Prepared, s: CheckedSettings, burnIn: number, rng: Ran
         for (let i = 0; i < n; i++) x[i] = x[i]! * f;
         total *= f;
         sub *= f;
-        scale *= 2 ** e;
-        thr = threshold / scale;
+        ex += e;
+        scale = 2 ** ex;
+        thr = threshold * 2 ** -ex;
       }
       const v = total * scale;
       const d = v - abMean[t]!;
       abMean[t] = abMean[t]! + d * inv;
       abM2[t] = abM2[t]! + d * (v - abMean[t]!);
-      if (t === burnIn) logStart = Math.log(total) + Math.log(scale);
+      if (t === burnIn) logStart = Math.log(total) + ex * Math.LN2;
     }
     if (sub <= thr) acc.belowAtHorizon += 1;
     const final = total * scale;
-    const log10Final = final > 0 ? Math.log10(total) + Math.log10(scale) : -Infinity;
-    const logEnd = Math.log(total) + Math.log(scale);
+    const log10Final = total > 0 ? Math.log10(total) + ex * LOG10_2 : -Infinity;
+    const logEnd = Math.log(total) + ex * Math.LN2;
     const ok = years > 0 && total > 0 && Number.isFinite(logStart);
     recordReplicate(acc, final, log10Final, ok ? (logEnd - logStart) / years : 0, ok);
   }
@@ -986,6 +989,7 @@ function runLinearBlocks(p: Prepared, s: CheckedSettings, burnIn: number, rng: R
   for (let r = 0; r < count; r++) {
     x.set(initial);
     let scale = 1;
+    let ex = 0; // true abundance = x · 2^ex (scale = 2^ex, which may under- or overflow; ex does not)
     let thr = threshold;
     let extinct = startBelow;
     if (startBelow) firstPassage[0] = firstPassage[0]! + 1;
@@ -1039,7 +1043,7 @@ function runLinearBlocks(p: Prepared, s: CheckedSettings, burnIn: number, rng: R
         const d = v - abMean[year]!;
         abMean[year] = abMean[year]! + d * inv;
         abM2[year] = abM2[year]! + d * (v - abMean[year]!);
-        if (year === burnIn) logStart = Math.log(tot) + Math.log(scale);
+        if (year === burnIn) logStart = Math.log(tot) + ex * Math.LN2;
       }
       // The whole block: y = (A_{k_L}⋯A_{k_1}) x.
       const prod = products[L]!;
@@ -1076,19 +1080,20 @@ function runLinearBlocks(p: Prepared, s: CheckedSettings, burnIn: number, rng: R
         for (let i = 0; i < n; i++) x[i] = x[i]! * f;
         total *= f;
         sub *= f;
-        scale *= 2 ** e;
-        thr = threshold / scale;
+        ex += e;
+        scale = 2 ** ex;
+        thr = threshold * 2 ** -ex;
       }
       const v = total * scale;
       const d = v - abMean[t]!;
       abMean[t] = abMean[t]! + d * inv;
       abM2[t] = abM2[t]! + d * (v - abMean[t]!);
-      if (t === burnIn) logStart = Math.log(total) + Math.log(scale);
+      if (t === burnIn) logStart = Math.log(total) + ex * Math.LN2;
     }
     if (sub <= thr) acc.belowAtHorizon += 1;
     const final = total * scale;
-    const log10Final = final > 0 ? Math.log10(total) + Math.log10(scale) : -Infinity;
-    const logEnd = Math.log(total) + Math.log(scale);
+    const log10Final = total > 0 ? Math.log10(total) + ex * LOG10_2 : -Infinity;
+    const logEnd = Math.log(total) + ex * Math.LN2;
     const ok = years > 0 && total > 0 && Number.isFinite(logStart);
     recordReplicate(acc, final, log10Final, ok ? (logEnd - logStart) / years : 0, ok);
   }
@@ -1123,12 +1128,14 @@ function runGeneral(p: Prepared, s: CheckedSettings, burnIn: number, rng: Random
   for (let r = 0; r < count; r++) {
     x.set(initial);
     let scale = 1;
+    let ex = 0; // true abundance = x · 2^ex (scale = 2^ex, which may under- or overflow; ex does not)
     let thr = threshold;
     let ceil = ceiling;
     let extinct = startBelow;
     if (startBelow) firstPassage[0] = firstPassage[0]! + 1;
     for (let i = 0; i < n; i++) z[i] = initial[i]! / total0;
-    let zScale = total0;
+    let zEx = 0; // environment-only total = zTotal · 2^zEx · total0
+    const zLog0 = Math.log(total0);
     let state = 0;
     if (markov) {
       const u = rng.nextUint32();
@@ -1192,7 +1199,7 @@ function runGeneral(p: Prepared, s: CheckedSettings, burnIn: number, rng: Random
           const f = 2 ** -e;
           for (let i = 0; i < n; i++) z[i] = z[i]! * f;
           zTotal *= f;
-          zScale *= 2 ** e;
+          zEx += e;
         }
       }
 
@@ -1271,21 +1278,22 @@ function runGeneral(p: Prepared, s: CheckedSettings, burnIn: number, rng: Random
         for (let i = 0; i < n; i++) x[i] = x[i]! * f;
         total *= f;
         sub *= f;
-        scale *= 2 ** e;
-        thr = threshold / scale;
+        ex += e;
+        scale = 2 ** ex;
+        thr = threshold * 2 ** -ex;
         ceil = ceiling / scale;
       }
       const v = total * scale;
       const d = v - abMean[t]!;
       abMean[t] = abMean[t]! + d * inv;
       abM2[t] = abM2[t]! + d * (v - abMean[t]!);
-      if (t === burnIn) logStart = separate ? Math.log(zTotal) + Math.log(zScale) : Math.log(total) + Math.log(scale);
+      if (t === burnIn) logStart = separate ? Math.log(zTotal) + zEx * Math.LN2 + zLog0 : Math.log(total) + ex * Math.LN2;
     }
     if (sub <= thr) acc.belowAtHorizon += 1;
     const final = total * scale;
-    const log10Final = final > 0 ? Math.log10(total) + Math.log10(scale) : -Infinity;
+    const log10Final = total > 0 ? Math.log10(total) + ex * LOG10_2 : -Infinity;
     const endTotal = separate ? zTotal : total;
-    const logEnd = separate ? Math.log(zTotal) + Math.log(zScale) : Math.log(total) + Math.log(scale);
+    const logEnd = separate ? Math.log(zTotal) + zEx * Math.LN2 + zLog0 : Math.log(total) + ex * Math.LN2;
     const ok = years > 0 && endTotal > 0 && Number.isFinite(logStart);
     recordReplicate(acc, final, log10Final, ok ? (logEnd - logStart) / years : 0, ok);
   }
@@ -1633,6 +1641,10 @@ export function mergeChunks(settings: SimulationSettings, partials: readonly Chu
     };
     if (gm.count < 2) nullReasons["growthRate.simulated.standardError"] = "One replicate gives no spread, so the interval has zero width.";
   }
+  if (!Number.isFinite(fm.mean) || !Number.isFinite(fm.m2) || abundance.mean.some((m) => !Number.isFinite(m))) {
+    nullReasons["finalAbundance.mean"] =
+      "Some replicates grew beyond 1.8e308 individuals, past floating-point range: means and SDs of abundance are infinite (they read as null in JSON). Quantiles, quasi-extinction and log λs are unaffected.";
+  }
   const approx = partials[0]!.approximation;
   const approximation = approx?.value ?? null;
   if (approximation === null) nullReasons["growthRate.approximation"] = approx?.reason ?? "Chunk 0 did not compute the approximation.";
@@ -1701,7 +1713,9 @@ function finalQuantile(
   const clamp = (v: number) => Math.min(max, Math.max(min, v));
   if (target <= zero && zero > 0) return { p: q, value: 0, censored: null };
   let cum = zero;
-  if (below > 0 && target <= cum + below) return { p: q, value: clamp(10 ** FINAL_LOG10_MIN), censored: min === max ? null : "below" };
+  // Every replicate equal (and representable): that value is exact.
+  const single = min === max && min > 0 && Number.isFinite(min);
+  if (below > 0 && target <= cum + below) return single ? { p: q, value: min, censored: null } : { p: q, value: 10 ** FINAL_LOG10_MIN, censored: "below" };
   cum += below;
   for (let k = 0; k < FINE_BINS; k++) {
     const c = bins[k]!;
@@ -1713,7 +1727,7 @@ function finalQuantile(
     }
     cum += c;
   }
-  if (above > 0) return { p: q, value: clamp(10 ** FINAL_LOG10_MAX), censored: min === max ? null : "above" };
+  if (above > 0) return single ? { p: q, value: max, censored: null } : { p: q, value: 10 ** FINAL_LOG10_MAX, censored: "above" };
   return { p: q, value: max, censored: null };
 }
 

@@ -433,6 +433,27 @@ describe("demographic stochasticity", () => {
   });
 });
 
+// ---- extreme ranges -------------------------------------------------------------------
+
+describe("populations far beyond floating-point range", () => {
+  it.each([
+    ["year by year", 1],
+    ["in blocks of years", 4],
+  ])("keeps log λs and quasi-extinction exact when N falls to 1e-396 or rises to 1e400 (%s)", (_label, maxBlockYears) => {
+    // N_t = 100 · a^t over 1000 years; 0.4^1000 ≈ 1e-398 and 2.5^1000 ≈ 1e398 are outside doubles.
+    const T = 1000;
+    for (const a of [0.4, 2.5]) {
+      const r = run({ kind: "independent", matrices: [{ A: [[a]] }], weights: [1] }, settings({ initial: [100], horizon: T, replicates: 3, threshold: { value: 1 }, burnIn: 100 }), 1, SEED, { maxBlockYears });
+      expect(r.growthRate.simulated!.logLambdaS).toBeCloseTo(Math.log(a), 12);
+      const crossing = a < 1 ? Math.ceil(Math.log(100) / -Math.log(a)) : -1;
+      expect(r.quasiExtinction.medianTime).toBe(a < 1 ? crossing : null);
+      expect(r.finalAbundance.zeroCount).toBe(0);
+      expect(r.finalAbundance.quantiles[4]!.censored).toBe(a < 1 ? "below" : "above");
+      if (a > 1) expect(r.nullReasons["finalAbundance.mean"]).toMatch(/beyond 1.8e308 individuals/);
+    }
+  });
+});
+
 // ---- final abundance ----------------------------------------------------------------
 
 describe("final abundance", () => {
