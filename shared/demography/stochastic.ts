@@ -181,6 +181,8 @@ export interface GrowthApproximation {
 /** The compact, JSON-serialisable result of one chunk. */
 export interface ChunkResult {
   readonly format: "stagewright-risk-chunk-1";
+  /** The Run's seed (chunks of one Run share it). */
+  readonly seed: number;
   readonly chunkIndex: number;
   readonly firstReplicate: number;
   readonly replicateCount: number;
@@ -1281,7 +1283,7 @@ function runGeneral(p: Prepared, s: CheckedSettings, burnIn: number, rng: Random
         ex += e;
         scale = 2 ** ex;
         thr = threshold * 2 ** -ex;
-        ceil = ceiling / scale;
+        ceil = ceiling * 2 ** -ex;
       }
       const v = total * scale;
       const d = v - abMean[t]!;
@@ -1353,6 +1355,7 @@ export function simulateChunk(model: StochasticModel, settings: SimulationSettin
   });
   return {
     format: FORMAT,
+    seed,
     chunkIndex,
     firstReplicate,
     replicateCount,
@@ -1538,6 +1541,7 @@ export function mergeChunks(settings: SimulationSettings, partials: readonly Chu
     if (c.firstReplicate !== next) throw new MatrixInputError(`Chunk ${k} starts at replicate ${c.firstReplicate}, but the chunks before it end at ${next}.`, "partials", ["partials", k]);
     if (c.horizon !== T || c.firstPassage.length !== T + 1) throw new MatrixInputError(`Chunk ${k} was simulated over ${c.horizon} years, not ${T}.`, "partials", ["partials", k]);
     if (c.burnIn !== partials[0]!.burnIn) throw new MatrixInputError(`Chunk ${k} used a different burn-in.`, "partials", ["partials", k]);
+    if (c.seed !== partials[0]!.seed) throw new MatrixInputError(`Chunk ${k} was simulated with seed ${c.seed}, chunk 0 with ${partials[0]!.seed}: chunks of one Run share its seed.`, "partials", ["partials", k]);
     next += c.replicateCount;
   });
   if (next > settings.replicates) throw new MatrixInputError(`The chunks hold ${next} replicates but the settings ask for ${settings.replicates}.`, "partials");

@@ -342,6 +342,7 @@ function resultWith(firstPassage: Record<number, number>, replicates: number, ho
   for (const [year, c] of Object.entries(firstPassage)) counts[Number(year)] = c;
   const chunk: ChunkResult = {
     format: "stagewright-risk-chunk-1",
+    seed: 1,
     chunkIndex: 0,
     firstReplicate: 0,
     replicateCount: replicates,

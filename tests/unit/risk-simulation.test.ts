@@ -274,6 +274,8 @@ describe("chunks and seeds", () => {
     expect(() => mergeChunks(s, parts.slice(0, 3))).toThrow(/hold 675 of the 900 replicates/);
     expect(mergeChunks(s, parts.slice(0, 3), { allowIncomplete: true }).complete).toBe(false);
     expect(() => mergeChunks({ ...s, horizon: 31 }, parts)).toThrow(/over 30 years, not 31/);
+    const otherSeed = simulateChunk(model, s, { seed: SEED + 1, ...chunks[3]! });
+    expect(() => mergeChunks(s, [...parts.slice(0, 3), otherSeed])).toThrow(/chunks of one Run share its seed/);
   });
 });
 
