@@ -9,7 +9,7 @@ import tseslint from "typescript-eslint";
 const forbid = (groups, message) => ({ "no-restricted-imports": ["error", { patterns: groups.map((group) => ({ group, message })) }] });
 
 export default tseslint.config(
-  { ignores: ["dist/**", "node_modules/**", ".data/**", "drizzle/**", "coverage/**"] },
+  { ignores: ["dist/**", "node_modules/**", ".data/**", ".scratch*/**", "drizzle/**", "coverage/**"] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {
