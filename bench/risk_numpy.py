@@ -3,7 +3,8 @@
 Reads {"cases": [{"label", "matrices": [K][n][n], "weights": [K], "initial": [n],
 "horizon", "replicates", "threshold", "burnIn", "repeats"}]} from the JSON file
 named on the command line and prints one JSON object:
-{"numpy": version, "blas": {...}, "results": {label: {"seconds": [...], "summary": {...}}}}.
+{"numpy": version, "blas": {...}, "results": {label: {"seconds": [...], "cpu": [...], "summary": {...}}}}
+(wall-clock and process CPU seconds per run).
 
 Each case does what Stagewright's fast path does, with all replicates as one
 array: N (replicates x stages) is updated each year by a batched matrix
@@ -123,12 +124,15 @@ def main():
         rng = np.random.default_rng(case.get("seed", 1))
         simulate(case, rng)  # warm-up
         seconds = []
+        cpu = []
         summary = None
         for _ in range(case["repeats"]):
+            c0 = time.process_time()
             t0 = time.perf_counter()
             summary = simulate(case, rng)
             seconds.append(time.perf_counter() - t0)
-        results[case["label"]] = {"seconds": seconds, "summary": summary}
+            cpu.append(time.process_time() - c0)
+        results[case["label"]] = {"seconds": seconds, "cpu": cpu, "summary": summary}
     print(json.dumps({"numpy": np.__version__, "blas": blas_info(), "results": results}))
 
 
