@@ -13,7 +13,7 @@
  *    `iucnCriterionE(result, generationLength)`.
  */
 export { buildRiskModel, RiskModelError, type RiskModel } from "./model";
-export { iucnCriterionE, CRITERION_E, CRITERION_E_MAX_YEARS, CRITERION_E_CAUTION, type CriterionECategory, type CriterionECheck, type CriterionEAssessment } from "./iucn";
+export { iucnCriterionE, yearsPerTimeStep, CRITERION_E, CRITERION_E_MAX_YEARS, CRITERION_E_CAUTION, type CriterionECategory, type CriterionECheck, type CriterionEAssessment } from "./iucn";
 export {
   planChunks,
   secondsPerReplicateYear,

@@ -64,6 +64,22 @@ export interface CriterionEAssessment {
   readonly caution: string;
 }
 
+const UNIT_YEARS: Record<string, number> = { year: 1, yr: 1, y: 1, annum: 1, decade: 10, month: 1 / 12, week: 7 / 365.25, day: 1 / 365.25, generation: NaN };
+
+/**
+ * Years in one projection interval from a life cycle's time-step unit
+ * ("year", "2 years", "month", "5-year", "decade", "week", "day"); null when
+ * the unit is not a length of time this knows (then ask the user).
+ */
+export function yearsPerTimeStep(unit: string): number | null {
+  const m = /^\s*(\d+(?:\.\d+)?)?\s*-?\s*([a-z]+?)s?\s*$/i.exec(unit);
+  if (!m) return null;
+  const count = m[1] === undefined ? 1 : Number(m[1]);
+  const per = UNIT_YEARS[m[2]!.toLowerCase()];
+  if (per === undefined || !Number.isFinite(per) || !(count > 0)) return null;
+  return count * per;
+}
+
 const pct = (p: number) => `${(100 * p).toFixed(p < 0.001 && p > 0 ? 2 : 1)} %`;
 const num = (x: number) => (Number.isInteger(x) ? String(x) : x.toFixed(1));
 

@@ -12,7 +12,7 @@ import {
   type StochasticResult,
 } from "../../shared/demography";
 import { LifeCycleSchema, type LifeCycle, type LifeCycleInput } from "../../shared/lifecycle";
-import { buildRiskModel, iucnCriterionE, normalCdf, RiskModelError } from "../../shared/risk";
+import { buildRiskModel, iucnCriterionE, normalCdf, RiskModelError, yearsPerTimeStep } from "../../shared/risk";
 import { RiskSettingsSchema, type RiskSettings, type RiskSettingsInput } from "../../shared/schemas/risk";
 
 // Monte Carlo checks use a fixed seed and tolerances of Z standard errors
@@ -409,6 +409,16 @@ describe("iucnCriterionE", () => {
     expect(b.checks[1]).toMatchObject({ status: "met", uncertain: false });
     const c = iucnCriterionE(resultWith({ 8: 60 }, 100, 100), null);
     expect(c.checks[0]!.status).toBe("met");
+  });
+
+  it("reads the years in a time step from the life cycle's unit", () => {
+    expect(yearsPerTimeStep("year")).toBe(1);
+    expect(yearsPerTimeStep("2 years")).toBe(2);
+    expect(yearsPerTimeStep("5-year")).toBe(5);
+    expect(yearsPerTimeStep("Month")).toBeCloseTo(1 / 12, 15);
+    expect(yearsPerTimeStep("decade")).toBe(10);
+    expect(yearsPerTimeStep("breeding season")).toBeNull();
+    expect(yearsPerTimeStep("generation")).toBeNull();
   });
 
   it("converts projection intervals to years", () => {
