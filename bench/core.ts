@@ -29,7 +29,7 @@ for (const n of [200, 500]) cases.push({ label: `size kernel n=${n}`, n, matrice
  * this one thousands of times), then time batches of at least `minBatch`
  * seconds each.
  */
-function medianTime(run: (k: number) => void, count: number, minBatch = 0.02, budget = 3, warm = 0.5): number {
+function medianTime(run: (k: number) => void, count: number, minBatch = 0.02, budget = 3, warm = 0.5): { median: number; min: number } {
   let k = 0;
   const warmStart = performance.now();
   do run(k++ % count);
@@ -46,7 +46,7 @@ function medianTime(run: (k: number) => void, count: number, minBatch = 0.02, bu
     samples.push((performance.now() - t0) / 1000 / perBatch);
   }
   samples.sort((p, q) => p - q);
-  return samples[Math.floor(samples.length / 2)] as number;
+  return { median: samples[Math.floor(samples.length / 2)] as number, min: samples[0] as number };
 }
 
 /** The same quantities from ml-matrix's dense eigendecomposition of A and Aᵀ. */
@@ -75,19 +75,24 @@ function mlMatrixAnalysis(A: number[][]): number {
   return check;
 }
 
-function numpyTimes(): { results: Record<string, number>; label: string } | null {
-  const probe = spawnSync("python3", ["-c", "import numpy"], { encoding: "utf8" });
-  if (probe.status !== 0) return null;
+const hasNumpy = spawnSync("python3", ["-c", "import numpy"], { encoding: "utf8" }).status === 0;
+const numpyLabels = new Set<string>();
+
+/**
+ * numpy timings for one case, run right after the TypeScript timings of the
+ * same case so both see the same machine load. OPENBLAS_CORETYPE and
+ * OPENBLAS_L2_SIZE may be set on this machine for old OpenBLAS builds; they
+ * slow a current numpy, so both are unset for this command only. Default
+ * threading and one thread are both timed; the faster is the reference.
+ */
+function numpyTimes(c: Case): { threaded?: number; single?: number } {
+  if (!hasNumpy) return {};
   const dir = mkdtempSync(join(tmpdir(), "stagewright-bench-"));
   const file = join(dir, "cases.json");
-  writeFileSync(file, JSON.stringify({ minBatchSeconds: 0.02, cases: cases.map((c) => ({ label: c.label, matrices: c.matrices })) }));
-  const out: Record<string, number> = {};
-  const labels: string[] = [];
+  writeFileSync(file, JSON.stringify({ minBatchSeconds: 0.02, cases: [{ label: c.label, matrices: c.matrices }] }));
+  const out: { threaded?: number; single?: number } = {};
   try {
-    // OPENBLAS_CORETYPE / OPENBLAS_L2_SIZE may be set on this machine for old
-    // OpenBLAS builds; they slow a current numpy, so unset both for this run only.
-    // Default threading and one thread are both timed; the faster one is the reference.
-    for (const threads of ["default", "1"]) {
+    for (const threads of ["default", "1"] as const) {
       const env: NodeJS.ProcessEnv = { ...process.env };
       delete env.OPENBLAS_CORETYPE;
       delete env.OPENBLAS_L2_SIZE;
@@ -98,19 +103,21 @@ function numpyTimes(): { results: Record<string, number>; label: string } | null
         continue;
       }
       const parsed = JSON.parse(r.stdout) as { numpy: string; blas: Record<string, unknown>; results: Record<string, number> };
-      labels.push(`numpy ${parsed.numpy}, OpenBLAS core ${String(parsed.blas.core ?? "?")}, threads ${String(parsed.blas.threads ?? "?")}`);
-      for (const [k, t] of Object.entries(parsed.results)) out[`${threads}|${k}`] = t;
+      numpyLabels.add(`numpy ${parsed.numpy}, OpenBLAS core ${String(parsed.blas.core ?? "?")}, threads ${String(parsed.blas.threads ?? "?")}`);
+      const t = parsed.results[c.label];
+      if (threads === "1") out.single = t;
+      else out.threaded = t;
     }
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }
-  return { results: out, label: labels.join("; ") };
+  return out;
 }
 
 const ms = (s: number | undefined): string => (s === undefined ? "—" : (s * 1000).toFixed(s < 1e-3 ? 4 : 2));
 const ratio = (a: number | undefined, b: number): string => (a === undefined ? "—" : `${(a / b).toFixed(1)}×`);
 
-const rows: { label: string; n: number; core: number; ml: number }[] = [];
+const rows: { label: string; n: number; core: number; coreMin: number; ml: number; npThreaded?: number; npSingle?: number }[] = [];
 for (const c of cases) {
   // Sanity: every benchmark matrix must converge.
   for (const A of c.matrices) {
@@ -119,22 +126,23 @@ for (const c of cases) {
   }
   const core = medianTime((k) => void analyzeMatrix({ A: c.matrices[k] as number[][] }), c.matrices.length);
   const ml = medianTime((k) => void mlMatrixAnalysis(c.matrices[k] as number[][]), c.matrices.length, 0.02, 4, c.n >= 200 ? 0 : 0.5);
-  rows.push({ label: c.label, n: c.n, core, ml });
+  const np = numpyTimes(c);
+  rows.push({ label: c.label, n: c.n, core: core.median, coreMin: core.min, ml: ml.median, npThreaded: np.threaded, npSingle: np.single });
 }
-const np = numpyTimes();
 
-console.log("Full analysis per matrix (median; ms). Ratios are reference time / Stagewright time.");
-if (np) console.log(np.label);
-else console.log("numpy: python3 with numpy not found, column skipped");
-console.log("| case | Stagewright | ml-matrix EVD(A)+EVD(Aᵀ) | numpy eig (default threads) | numpy eig (1 thread) | vs ml-matrix | vs best numpy | budget |");
+console.log("Full analysis per matrix, ms: median over batches (fastest batch in brackets; the machine may be shared).");
+console.log("Ratios are reference median / Stagewright median.");
+if (hasNumpy) console.log([...numpyLabels].join("; "));
+else console.log("numpy: python3 with numpy not found, columns skipped");
+console.log("| case | Stagewright (fastest) | ml-matrix EVD(A)+EVD(Aᵀ) | numpy eig (default threads) | numpy eig (1 thread) | vs ml-matrix | vs best numpy | budget |");
 console.log("|---|---:|---:|---:|---:|---:|---:|---|");
 for (const r of rows) {
-  const npDefault = np?.results[`default|${r.label}`];
-  const npOne = np?.results[`1|${r.label}`];
+  const npDefault = r.npThreaded;
+  const npOne = r.npSingle;
   const best = npDefault === undefined ? npOne : npOne === undefined ? npDefault : Math.min(npDefault, npOne);
   let budget = "";
   if (r.n === 10) budget = r.core <= 0.05e-3 ? "≤ 0.05 ms: met" : "≤ 0.05 ms: MISSED";
   else if (r.n === 500) budget = r.core <= 0.15 ? "≤ 150 ms: met" : "≤ 150 ms: MISSED";
   if (r.n >= 50 && best !== undefined) budget += `${budget ? "; " : ""}${r.core < best ? "faster than numpy" : "SLOWER than numpy"}`;
-  console.log(`| ${r.label} | ${ms(r.core)} | ${ms(r.ml)} | ${ms(npDefault)} | ${ms(npOne)} | ${ratio(r.ml, r.core)} | ${ratio(best, r.core)} | ${budget} |`);
+  console.log(`| ${r.label} | ${ms(r.core)} (${ms(r.coreMin)}) | ${ms(r.ml)} | ${ms(npDefault)} | ${ms(npOne)} | ${ratio(r.ml, r.core)} | ${ratio(best, r.core)} | ${budget} |`);
 }
