@@ -3,7 +3,7 @@
 // fields are null, `nullReasons` says why in plain words, and `diagnostics`
 // explains the matrix. Only input that cannot be read throws
 // (MatrixInputError: not square, ragged, empty, NaN/±Infinity, too large).
-import { graphStructure, reachableFrom, reverseGraph } from "./graph";
+import { graphStructure, reachableFrom } from "./graph";
 import {
   convergenceTime as convergenceTimeOf,
   dampingFromEigenvalues,

@@ -3,7 +3,7 @@
 // means for the analysis. Structure (reducibility, primitivity, reachability)
 // comes from the life-cycle graph (graph.ts), exactly; magnitudes (survival,
 // block growth rates) from the numbers.
-import { graphStructure, reachableFrom, reverseGraph, type GraphStructure } from "./graph";
+import { graphStructure, reachableFrom, type GraphStructure } from "./graph";
 import { spectralRadiusDense } from "./eigen";
 import { readSquareMatrix, readStageNames } from "./input";
 
@@ -161,7 +161,7 @@ export function diagnoseDense(ctx: DiagnosticContext): Diagnostic[] {
   const lambda = Math.max(...blockRadii);
   
   // Reproduction-based reachability (needs F to know which stages reproduce).
-  let reproducing: number[] = [];
+  const reproducing: number[] = [];
   if (f !== null) {
     for (let j = 0; j < n; j++) {
       for (let i = 0; i < n; i++) {

@@ -134,7 +134,6 @@ export function restartedArnoldi(op: LinearOperator, n: number, options: KrylovO
     // Ritz values.
     hCopy.set(h);
     if (!hessenbergEigenvalues(hCopy, m, re, im)) {
-      (globalThis as any).__cap?.(h);
       solved = false;
       break;
     }
