@@ -5,8 +5,10 @@
 // Method. Small matrices (n ≤ DENSE_LIMIT): a full Arnoldi process reduces A to
 // Hessenberg form H = VᵀAV, whose eigenvalues (Francis QR) are all of A's; w
 // and v are inverse-iteration eigenvectors of H mapped back by V. Larger
-// matrices: implicitly restarted Arnoldi on A (for λ and λ₂) and on Aᵀ (for
-// v), with a residual test on every wanted Ritz value. Imprimitive matrices
+// matrices: implicitly restarted Arnoldi on A for λ, w and λ₂, with a
+// residual test on every wanted Ritz value; then v by inverse iteration at
+// the now-known λ (one dense LU, n ≤ 100) or by restarted Arnoldi on Aᵀ
+// (larger n, where the LU would cost more than the Krylov run). Imprimitive matrices
 // have several eigenvalues on the top circle (λ·e^{2πik/d}); plain power
 // iteration would oscillate among them, but a Krylov space resolves them as
 // separate Ritz values and λ is picked as the real one with the largest real
