@@ -644,8 +644,10 @@ export function defaultBurnIn(meanMatrix: Float64Array | null, n: number, horizo
 interface Accumulators {
   readonly firstPassage: Float64Array;
   belowAtHorizon: number;
-  readonly abMean: Float64Array;
-  readonly abM2: Float64Array;
+  /** Total abundance by year: shifted sums Σ(v − shift), Σ(v − shift)², shift = the chunk's first replicate (exact for equal values, no cancellation). */
+  readonly abShift: Float64Array;
+  readonly abS1: Float64Array;
+  readonly abS2: Float64Array;
   readonly bins: Int32Array;
   finalCount: number;
   finalMean: number;
@@ -665,8 +667,9 @@ function newAccumulators(T: number): Accumulators {
   return {
     firstPassage: new Float64Array(T + 1),
     belowAtHorizon: 0,
-    abMean: new Float64Array(T + 1),
-    abM2: new Float64Array(T + 1),
+    abShift: new Float64Array(T + 1),
+    abS1: new Float64Array(T + 1),
+    abS2: new Float64Array(T + 1),
     bins: new Int32Array(FINE_BINS),
     finalCount: 0,
     finalMean: 0,
@@ -724,7 +727,7 @@ function runLinearSets(p: Prepared, s: CheckedSettings, burnIn: number, rng: Ran
   const nn = n * n;
   // Mostly full matrices: a dense kernel beats indexed access (measured on 10×10).
   const dense = vals.length > 0.6 * K * nn;
-  const { firstPassage, abMean, abM2 } = acc;
+  const { firstPassage, abShift, abS1, abS2 } = acc;
   let x = new Float64Array(n);
   let y = new Float64Array(n);
   let total0 = 0;
@@ -748,7 +751,6 @@ function runLinearSets(p: Prepared, s: CheckedSettings, burnIn: number, rng: Ran
       const u = rng.nextUint32();
       while (u >= cumInitial[state]!) state++;
     }
-    const inv = 1 / (acc.finalCount + 1);
     let logStart = burnIn === 0 ? Math.log(total0) : NaN;
     let total = total0;
     let sub = sub0;
@@ -818,9 +820,10 @@ function runLinearSets(p: Prepared, s: CheckedSettings, burnIn: number, rng: Ran
         thr = threshold * 2 ** -ex;
       }
       const v = total * scale;
-      const d = v - abMean[t]!;
-      abMean[t] = abMean[t]! + d * inv;
-      abM2[t] = abM2[t]! + d * (v - abMean[t]!);
+      if (r === 0) abShift[t] = v;
+      const d = v - abShift[t]!;
+      abS1[t] = abS1[t]! + d;
+      abS2[t] = abS2[t]! + d * d;
       if (t === burnIn) logStart = Math.log(total) + ex * Math.LN2;
     }
     if (sub <= thr) acc.belowAtHorizon += 1;
@@ -830,7 +833,6 @@ function runLinearSets(p: Prepared, s: CheckedSettings, burnIn: number, rng: Ran
     const ok = years > 0 && total > 0 && Number.isFinite(logStart);
     recordReplicate(acc, final, log10Final, ok ? (logEnd - logStart) / years : 0, ok);
   }
-  abMean[0] = total0;
 }
 
 /** Largest table of block products (doubles, all lengths together): 1 MiB, the L2 cache of one core here. */
@@ -977,7 +979,7 @@ function runLinearBlocks(p: Prepared, s: CheckedSettings, burnIn: number, rng: R
   const subset = s.stages !== null;
   const nn = n * n;
   const { products, prefix, codeThresholds, codeGuide, columnSums, maskSums } = blockTables(p, mask, m, markov ? null : p.weights);
-  const { firstPassage, abMean, abM2 } = acc;
+  const { firstPassage, abShift, abS1, abS2 } = acc;
   let x = new Float64Array(n);
   let y = new Float64Array(n);
   let total0 = 0;
@@ -1000,7 +1002,6 @@ function runLinearBlocks(p: Prepared, s: CheckedSettings, burnIn: number, rng: R
       const u = rng.nextUint32();
       while (u >= cumInitial[state]!) state++;
     }
-    const inv = 1 / (acc.finalCount + 1);
     let logStart = burnIn === 0 ? Math.log(total0) : NaN;
     let total = total0;
     let sub = sub0;
@@ -1042,9 +1043,10 @@ function runLinearBlocks(p: Prepared, s: CheckedSettings, burnIn: number, rng: R
           firstPassage[year] = firstPassage[year]! + 1;
         }
         const v = tot * scale;
-        const d = v - abMean[year]!;
-        abMean[year] = abMean[year]! + d * inv;
-        abM2[year] = abM2[year]! + d * (v - abMean[year]!);
+        if (r === 0) abShift[year] = v;
+        const d = v - abShift[year]!;
+        abS1[year] = abS1[year]! + d;
+        abS2[year] = abS2[year]! + d * d;
         if (year === burnIn) logStart = Math.log(tot) + ex * Math.LN2;
       }
       // The whole block: y = (A_{k_L}⋯A_{k_1}) x.
@@ -1087,9 +1089,10 @@ function runLinearBlocks(p: Prepared, s: CheckedSettings, burnIn: number, rng: R
         thr = threshold * 2 ** -ex;
       }
       const v = total * scale;
-      const d = v - abMean[t]!;
-      abMean[t] = abMean[t]! + d * inv;
-      abM2[t] = abM2[t]! + d * (v - abMean[t]!);
+      if (r === 0) abShift[t] = v;
+      const d = v - abShift[t]!;
+      abS1[t] = abS1[t]! + d;
+      abS2[t] = abS2[t]! + d * d;
       if (t === burnIn) logStart = Math.log(total) + ex * Math.LN2;
     }
     if (sub <= thr) acc.belowAtHorizon += 1;
@@ -1099,7 +1102,6 @@ function runLinearBlocks(p: Prepared, s: CheckedSettings, burnIn: number, rng: R
     const ok = years > 0 && total > 0 && Number.isFinite(logStart);
     recordReplicate(acc, final, log10Final, ok ? (logEnd - logStart) / years : 0, ok);
   }
-  abMean[0] = total0;
 }
 
 /**
@@ -1114,7 +1116,7 @@ function runGeneral(p: Prepared, s: CheckedSettings, burnIn: number, rng: Random
   const sampled = p.kind === "sampler";
   const separate = demographic || Number.isFinite(ceiling);
   const out: SampledMatrices = { A: new Float64Array(nn), U: new Float64Array(nn), F: new Float64Array(nn) };
-  const { firstPassage, abMean, abM2 } = acc;
+  const { firstPassage, abShift, abS1, abS2 } = acc;
   let x = new Float64Array(n);
   let y = new Float64Array(n);
   let z = new Float64Array(n);
@@ -1143,7 +1145,6 @@ function runGeneral(p: Prepared, s: CheckedSettings, burnIn: number, rng: Random
       const u = rng.nextUint32();
       while (u >= cumInitial[state]!) state++;
     }
-    const inv = 1 / (acc.finalCount + 1);
     let logStart = burnIn === 0 ? Math.log(total0) : NaN;
     let total = total0;
     let sub = sub0;
@@ -1286,9 +1287,10 @@ function runGeneral(p: Prepared, s: CheckedSettings, burnIn: number, rng: Random
         ceil = ceiling * 2 ** -ex;
       }
       const v = total * scale;
-      const d = v - abMean[t]!;
-      abMean[t] = abMean[t]! + d * inv;
-      abM2[t] = abM2[t]! + d * (v - abMean[t]!);
+      if (r === 0) abShift[t] = v;
+      const d = v - abShift[t]!;
+      abS1[t] = abS1[t]! + d;
+      abS2[t] = abS2[t]! + d * d;
       if (t === burnIn) logStart = separate ? Math.log(zTotal) + zEx * Math.LN2 + zLog0 : Math.log(total) + ex * Math.LN2;
     }
     if (sub <= thr) acc.belowAtHorizon += 1;
@@ -1299,7 +1301,6 @@ function runGeneral(p: Prepared, s: CheckedSettings, burnIn: number, rng: Random
     const ok = years > 0 && endTotal > 0 && Number.isFinite(logStart);
     recordReplicate(acc, final, log10Final, ok ? (logEnd - logStart) / years : 0, ok);
   }
-  abMean[0] = total0;
 }
 
 /** A sampler's draw must be usable: finite, non-negative, and for demographic noise U columns summing to at most 1. */
@@ -1349,6 +1350,10 @@ export function simulateChunk(model: StochasticModel, settings: SimulationSettin
   let approximation: ChunkResult["approximation"] = null;
   if (chunkIndex === 0) approximation = approximateGrowth(model, p, seed);
 
+  // Moments by year from the shifted sums; year 0 is the initial vector in every replicate.
+  const N = replicateCount;
+  const abundanceMean = Array.from(acc.abShift, (shift, t) => (t === 0 ? s.initial.reduce((a, b) => a + b, 0) : shift + acc.abS1[t]! / N));
+  const abundanceM2 = Array.from(acc.abS2, (s2, t) => (t === 0 ? 0 : Math.max(0, s2 - acc.abS1[t]! ** 2 / N)));
   const bins: [number, number][] = [];
   acc.bins.forEach((c, k) => {
     if (c > 0) bins.push([k, c]);
@@ -1363,8 +1368,8 @@ export function simulateChunk(model: StochasticModel, settings: SimulationSettin
     burnIn,
     firstPassage: Array.from(acc.firstPassage),
     belowAtHorizon: acc.belowAtHorizon,
-    abundanceMean: Array.from(acc.abMean),
-    abundanceM2: Array.from(acc.abM2),
+    abundanceMean,
+    abundanceM2,
     final: {
       count: acc.finalCount,
       mean: acc.finalMean,
