@@ -32,6 +32,14 @@ export const queryKeys = {
     /** The live analysis of the editor's unsaved document at one of its revisions (POST /analyze). */
     draftAnalysis: (lifeCycleId: string, revision: number) => [...queryKeys.lifeCycles.analysis(lifeCycleId), "draft", revision] as const,
     snapshots: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "snapshots"] as const,
+    /** The life cycle's Runs, newest first (GET /life-cycles/:id/runs). */
+    runs: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "runs"] as const,
+  },
+
+  /** Runs by id: status and progress while they compute, then their result. */
+  runs: {
+    all: ["runs"] as const,
+    detail: (runId: string) => [...queryKeys.runs.all, runId] as const,
   },
 
   /** Snapshots by id (immutable: their documents never change). */
@@ -57,4 +65,4 @@ export const queryKeys = {
 };
 
 /** Query keys whose data belongs to the signed-in person; dropped when the session starts or ends. */
-export const personalKeyPrefixes = [queryKeys.account.all, queryKeys.studies.all, queryKeys.lifeCycles.all, queryKeys.snapshots.all, queryKeys.analyze.all] as const;
+export const personalKeyPrefixes = [queryKeys.account.all, queryKeys.studies.all, queryKeys.lifeCycles.all, queryKeys.snapshots.all, queryKeys.runs.all, queryKeys.analyze.all] as const;

@@ -26,6 +26,7 @@ import {
 } from "../features/editor-state";
 import type { ExportPanelProps } from "../features/export";
 import type { HistoryPanelProps } from "../features/history";
+import type { RiskPanelProps } from "../features/risk";
 import type { EditorPanelProps, Selection } from "../lib/editor-types";
 import { ROLE_LABELS } from "../lib/roles";
 import { paths } from "./paths";
@@ -35,14 +36,16 @@ const DiagramPanel = lazy(() => import("../features/diagram").then((m) => ({ def
 const RatesPanel = lazy(() => import("../features/rates").then((m) => ({ default: m.RatesPanel })));
 const MatrixPanel = lazy(() => import("../features/matrix").then((m) => ({ default: m.MatrixPanel })));
 const ResultsPanel = lazy(() => import("../features/results").then((m) => ({ default: m.ResultsPanel })));
+const RiskPanel = lazy(() => import("../features/risk").then((m) => ({ default: m.RiskPanel })));
 const HistoryPanel = lazy(() => import("../features/history").then((m) => ({ default: m.HistoryPanel })));
 const ExportPanel = lazy(() => import("../features/export").then((m) => ({ default: m.ExportPanel })));
 
-type TabId = "diagram" | "rates" | "matrix" | "results" | "history" | "export";
+type TabId = "diagram" | "rates" | "matrix" | "results" | "risk" | "history" | "export";
 
 interface TabContext {
   /** The panel props for one tab (each tab gets its own `onSelect`). */
   panel: (tab: TabId) => EditorPanelProps;
+  risk: RiskPanelProps;
   history: HistoryPanelProps;
   exports: ExportPanelProps;
 }
@@ -52,6 +55,7 @@ const TABS: readonly { id: TabId; label: string; render: (c: TabContext) => Reac
   { id: "rates", label: "Rates", render: (c) => <RatesPanel {...c.panel("rates")} /> },
   { id: "matrix", label: "Matrix", render: (c) => <MatrixPanel {...c.panel("matrix")} /> },
   { id: "results", label: "Results", render: (c) => <ResultsPanel {...c.panel("results")} /> },
+  { id: "risk", label: "Risk", render: (c) => <RiskPanel {...c.risk} /> },
   { id: "history", label: "History", render: (c) => <HistoryPanel {...c.history} /> },
   { id: "export", label: "Export", render: (c) => <ExportPanel {...c.exports} /> },
 ];
@@ -106,6 +110,7 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
         if (tab !== "diagram" && (next?.kind === "stage" || next?.kind === "transition")) showTab(0);
       },
     }),
+    risk: { lifeCycleId: initial.id, studyId: study.id, document, analysis, readOnly, saveStatus: editor.save.status, version: editor.version },
     history: { lifeCycleId: initial.id, version: editor.version, readOnly, onRestored: editor.reset },
     exports: { document, analysis },
   };

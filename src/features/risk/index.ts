@@ -1,0 +1,1 @@
+export { RiskPanel, type RiskPanelProps } from "./risk-panel";
