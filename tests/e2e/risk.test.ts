@@ -128,6 +128,7 @@ describe("the Risk tab", () => {
         await expect.poll(() => sdAdult.getAttribute("aria-invalid")).toBe("true");
         expect(await description(sdAdult)).toContain("For a beta distribution with mean 0.85 the SD must be below √(mean·(1 − mean)) = 0.357071; got 0.4.");
         expect(await sdAdult.evaluate((el) => el === document.activeElement)).toBe(true);
+        await page.screenshot({ path: ".data/e2e-risk-form-error.png" });
         expect((await owner.get(`/api/v1/life-cycles/${lifeCycleId}/runs`)).body).toEqual([]);
         await sdAdult.fill("0.1");
         await expect.poll(() => sdAdult.getAttribute("aria-invalid")).toBeNull();
@@ -244,7 +245,9 @@ describe("the Risk tab", () => {
         await tableYears.fill("");
         await page.getByRole("button", { name: "Start run" }).click();
         await page.getByText("This Run is too short to judge every category.").waitFor({ timeout: 60_000 });
-        await page.getByText("Start a new Run with a horizon of at least 100 years to judge them.").waitFor();
+        await page.getByText("Start a new Run with a horizon of at least 100 years to judge them all.").waitFor();
+        const gens = (n: number) => Number((n * G).toPrecision(3));
+        await page.getByText(`CR needs ${gens(3)} years, EN needs ${gens(5)} years and VU needs 100 years, but the Run covers only 10 years.`, { exact: false }).waitFor();
         const shortRows = page.getByTestId("criterion-e-table").locator("tbody tr");
         expect(await shortRows.count()).toBe(3);
         for (const row of await shortRows.all()) expect(await row.innerText()).toContain("Run too short");

@@ -17,6 +17,9 @@ const YEARS: Record<CriterionECheck["category"], number> = { CR: 10, EN: 20, VU:
 
 const years = (x: number) => `${formatNumber(x, 3)} years`;
 
+/** "a", "a and b", "a, b and c". */
+const listWords = (items: readonly string[]) => (items.length <= 1 ? (items[0] ?? "") : `${items.slice(0, -1).join(", ")} and ${items.at(-1)}`);
+
 /** "3 generations = 3 × 8.5 years (mean age of parents)", or the server's words when the generation length is unknown. */
 export function horizonBasis(check: CriterionECheck, generationYears: number | null): string {
   const g = GENERATIONS[check.category];
@@ -58,9 +61,9 @@ export function CriterionETable({ assessment, runYears, timeStepUnit }: { assess
       {short.length > 0 && (
         <Alert tone="warning" title="This Run is too short to judge every category.">
           <p>
-            {short.map((c) => c.category).join(" and ")} {short.length === 1 ? "needs" : "need"} a horizon of {years(longest)}, but the Run covers only {years(runYears * perInterval)}
+            {listWords(short.map((c) => `${c.category} needs ${years(c.horizonYears ?? 0)}`))}, but the Run covers only {years(runYears * perInterval)}
             {perInterval === 1 ? "" : ` (${formatNumber(runYears, 4)} ${pluralOf(timeStepUnit)})`}. Start a new Run with a horizon of at least{" "}
-            {Math.ceil(longest / perInterval - 1e-9)} {pluralOf(timeStepUnit)} to judge {short.length === 1 ? "it" : "them"}.
+            {Math.ceil(longest / perInterval - 1e-9)} {pluralOf(timeStepUnit)} to judge {short.length === 1 ? "it" : "them all"}.
           </p>
         </Alert>
       )}
@@ -102,7 +105,7 @@ export function CriterionETable({ assessment, runYears, timeStepUnit }: { assess
                   <td className="px-2 py-2 tabular-nums">at least {formatShare(c.probabilityThreshold)}</td>
                   <td className="px-2 py-2">
                     <span className="font-bold tabular-nums">{c.horizonYears === null ? "unknown" : years(c.horizonYears)}</span>
-                    <span className="block text-xs text-ink/80">{horizonBasis(c, G)}</span>
+                    {horizonBasis(c, G) !== (c.horizonYears === null ? "" : years(c.horizonYears)) && <span className="block text-xs text-ink/80">{horizonBasis(c, G)}</span>}
                   </td>
                   <td className="px-2 py-2 tabular-nums">
                     <span className="font-bold">{formatProbability(c.probability)}</span> ({formatProbabilityRange(c.lower, c.upper)})

@@ -5,7 +5,7 @@
  * as the person types with the same schema the server uses; the server's
  * own refusals land under the same inputs.
  */
-import { useEffect, useId, useMemo, useRef, useState, type ReactNode } from "react";
+import { Fragment, useEffect, useId, useMemo, useRef, useState, type ReactNode } from "react";
 import { get, useFieldArray, useForm, useWatch, type FieldErrors, type UseFormRegisterReturn } from "react-hook-form";
 import type { LifeCycle } from "../../../shared/lifecycle";
 import { MAX_HORIZON, MAX_REPLICATES, RATE_DISTRIBUTIONS, type RiskSettings } from "../../../shared/schemas/risk";
@@ -38,9 +38,9 @@ export interface RiskSettingsFormProps {
 const drafts = new Map<string, RiskFormValues>();
 
 const DISTRIBUTION_WORDS: Record<(typeof RATE_DISTRIBUTIONS)[number], string> = {
-  beta: "beta (a probability, 0–1)",
-  lognormal: "lognormal (positive)",
-  gamma: "gamma (positive)",
+  beta: "beta (0–1)",
+  lognormal: "lognormal",
+  gamma: "gamma",
 };
 
 const errorOf = (errors: FieldErrors<RiskFormValues>, name: string): string | undefined => (get(errors, name) as { message?: string } | undefined)?.message;
@@ -55,10 +55,13 @@ function Input({
   className = "w-28",
   inputMode = "decimal",
   placeholder,
+  errorElsewhere,
 }: {
   label: string;
   hideLabel?: boolean;
   error?: string | undefined;
+  /** Id of the element that shows `error` (a row under a table row, say) instead of the input's own line. */
+  errorElsewhere?: string;
   hint?: ReactNode;
   registration: UseFormRegisterReturn;
   className?: string;
@@ -66,7 +69,8 @@ function Input({
   placeholder?: string;
 }) {
   const id = useId();
-  const described = [hint ? `${id}-hint` : null, error ? `${id}-error` : null].filter(Boolean).join(" ") || undefined;
+  const errorId = errorElsewhere ?? `${id}-error`;
+  const described = [hint ? `${id}-hint` : null, error ? errorId : null].filter(Boolean).join(" ") || undefined;
   return (
     <div className={`space-y-1 ${className}`}>
       <label htmlFor={id} className={hideLabel ? "sr-only" : "block text-sm font-bold"}>
@@ -88,7 +92,7 @@ function Input({
           {hint}
         </p>
       )}
-      {error && <FieldMessage id={`${id}-error`} message={error} />}
+      {error && !errorElsewhere && <FieldMessage id={errorId} message={error} />}
     </div>
   );
 }
@@ -284,7 +288,7 @@ export function RiskSettingsForm({ lifeCycleId, studyId, document: doc, stableSt
         legend="Quasi-extinction"
         help="A future counts as quasi-extinct the first time the population falls to the threshold or below, even if it climbs back later. Set it above zero: below some level a population is doomed or no longer viable."
       >
-        <Input label="Quasi-extinction threshold (individuals)" registration={register("thresholdValue")} error={errorOf(errors, "thresholdValue")} className="w-64" />
+        <Input label="Quasi-extinction threshold (individuals)" registration={register("thresholdValue")} error={errorOf(errors, "thresholdValue")} className="w-80" />
         <div role="radiogroup" aria-label="What the threshold counts" className="flex flex-col gap-1">
           <label className="flex items-center gap-2">
             <input type="radio" value="total" {...register("thresholdOn")} />
@@ -401,52 +405,75 @@ function VitalRateFields({ form, doc, values, correlations }: { form: Form; doc:
               const use = row?.use ?? false;
               const mean = parseNumberInput(row?.mean ?? "");
               const betaLimit = row?.distribution === "beta" && mean !== null && mean > 0 && mean < 1 ? Math.sqrt(mean * (1 - mean)) : null;
+              // Messages are long and the columns narrow: they go in a row of their own under the rate, tied to their inputs.
+              const problems = (["use", "mean", "sd"] as const)
+                .map((f) => ({ f, id: `risk-rate-${r.id}-${f}-error`, message: errorOf(errors, `rates.${k}.${f}`) }))
+                .filter((p): p is { f: "use" | "mean" | "sd"; id: string; message: string } => p.message !== undefined);
+              const problemId = (f: "use" | "mean" | "sd") => problems.find((p) => p.f === f)?.id;
               return (
-                <tr key={r.id} className="border-b border-ink/10 align-top">
-                  <td className="px-2 py-2">
-                    <label className="flex items-center gap-2 font-bold whitespace-nowrap">
-                      <input type="checkbox" {...register(`rates.${k}.use`)} />
-                      <span>
-                        Vary {r.name}
-                        <span className="block text-xs font-normal text-ink/75">value {formatNumber(r.value, 4)}</span>
-                      </span>
-                    </label>
-                    {errorOf(errors, `rates.${k}.use`) && <FieldMessage message={errorOf(errors, `rates.${k}.use`)!} />}
-                  </td>
-                  {use ? (
-                    <>
-                      <td className="px-2 py-2">
-                        <label className="sr-only" htmlFor={`risk-dist-${r.id}`}>
-                          Distribution of {r.name}
-                        </label>
-                        <select id={`risk-dist-${r.id}`} className="rounded border border-ink/40 bg-white px-2 py-1" {...register(`rates.${k}.distribution`)}>
-                          {RATE_DISTRIBUTIONS.map((d) => (
-                            <option key={d} value={d}>
-                              {DISTRIBUTION_WORDS[d]}
-                            </option>
-                          ))}
-                        </select>
-                      </td>
-                      <td className="px-2 py-2">
-                        <Input label={`Mean of ${r.name}`} hideLabel registration={register(`rates.${k}.mean`)} error={errorOf(errors, `rates.${k}.mean`)} />
-                      </td>
-                      <td className="px-2 py-2">
-                        <Input
-                          label={`SD of ${r.name} between years`}
-                          hideLabel
-                          registration={register(`rates.${k}.sd`)}
-                          error={errorOf(errors, `rates.${k}.sd`)}
-                          hint={betaLimit !== null ? `below ${formatNumber(betaLimit, 3)} for this mean` : undefined}
-                          className="w-56"
-                        />
-                      </td>
-                    </>
-                  ) : (
-                    <td colSpan={3} className="px-2 py-2 text-ink/70">
-                      kept at {formatNumber(r.value, 4)} every year
+                <Fragment key={r.id}>
+                  <tr className={`align-top ${problems.length > 0 ? "" : "border-b border-ink/10"}`}>
+                    <td className="px-2 py-2">
+                      <label className="flex items-center gap-2 font-bold whitespace-nowrap">
+                        <input type="checkbox" aria-describedby={problemId("use")} aria-invalid={problemId("use") ? true : undefined} {...register(`rates.${k}.use`)} />
+                        <span>
+                          Vary {r.name}
+                          <span className="block text-xs font-normal text-ink/75">value {formatNumber(r.value, 4)}</span>
+                        </span>
+                      </label>
                     </td>
+                    {use ? (
+                      <>
+                        <td className="px-2 py-2">
+                          <label className="sr-only" htmlFor={`risk-dist-${r.id}`}>
+                            Distribution of {r.name}
+                          </label>
+                          <select id={`risk-dist-${r.id}`} className="rounded border border-ink/40 bg-white px-2 py-1" {...register(`rates.${k}.distribution`)}>
+                            {RATE_DISTRIBUTIONS.map((d) => (
+                              <option key={d} value={d}>
+                                {DISTRIBUTION_WORDS[d]}
+                              </option>
+                            ))}
+                          </select>
+                        </td>
+                        <td className="px-2 py-2">
+                          <Input
+                            label={`Mean of ${r.name}`}
+                            hideLabel
+                            registration={register(`rates.${k}.mean`)}
+                            error={errorOf(errors, `rates.${k}.mean`)}
+                            errorElsewhere={problemId("mean")}
+                            className="w-24"
+                          />
+                        </td>
+                        <td className="px-2 py-2">
+                          <Input
+                            label={`SD of ${r.name} between years`}
+                            hideLabel
+                            registration={register(`rates.${k}.sd`)}
+                            error={errorOf(errors, `rates.${k}.sd`)}
+                            errorElsewhere={problemId("sd")}
+                            hint={betaLimit !== null ? `below ${formatNumber(betaLimit, 3)} for this mean` : undefined}
+                            className="w-32"
+                          />
+                        </td>
+                      </>
+                    ) : (
+                      <td colSpan={3} className="px-2 py-2 text-ink/70">
+                        kept at {formatNumber(r.value, 4)} every year
+                      </td>
+                    )}
+                  </tr>
+                  {problems.length > 0 && (
+                    <tr className="border-b border-ink/10">
+                      <td colSpan={4} className="px-2 pb-2">
+                        {problems.map((p) => (
+                          <FieldMessage key={p.f} id={p.id} message={p.message} />
+                        ))}
+                      </td>
+                    </tr>
                   )}
-                </tr>
+                </Fragment>
               );
             })}
           </tbody>
