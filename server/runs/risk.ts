@@ -3,7 +3,7 @@ import { and, eq, inArray, isNull } from "drizzle-orm";
 import { ZodError } from "zod";
 import { mergeChunks, simulateChunk, type ChunkResult, type StochasticResult } from "../../shared/demography";
 import { upgradeLifeCycle, type LifeCycle } from "../../shared/lifecycle";
-import { buildRiskModel, iucnCriterionE, planChunks, RiskModelError, type ChunkPlan, type CriterionEAssessment } from "../../shared/risk";
+import { buildRiskModel, iucnCriterionE, planChunks, RiskModelError, yearsPerTimeStep, type ChunkPlan, type CriterionEAssessment } from "../../shared/risk";
 import { RiskSettingsSchema, type RiskSettings } from "../../shared/schemas/risk";
 import type { Db } from "../db/client";
 import { lifeCycles } from "../db/schema";
@@ -70,7 +70,7 @@ export const riskRun: RunKind<RiskInput, ChunkResult, RiskRunResult> = {
       if (err instanceof RiskModelError) throw badSettings(err.fields);
       throw err;
     }
-    input.plan = planChunks(settings, document.stages.length);
+    input.plan = planChunks(settings, document.stages.length, { transitionCount: document.transitions.length });
     return { input, settings: input.settings, chunks: input.plan.chunks.length };
   },
 
@@ -92,7 +92,7 @@ export const riskRun: RunKind<RiskInput, ChunkResult, RiskRunResult> = {
       seed: input.seed,
       generationLength: m.generationLength,
       generationLengthReason: m.generationLengthReason,
-      criterionE: iucnCriterionE(result, m.generationLength),
+      criterionE: iucnCriterionE(result, m.generationLength, { yearsPerInterval: yearsPerTimeStep(input.document.timeStepUnit) ?? undefined }),
     };
   },
 };

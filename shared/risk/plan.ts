@@ -27,9 +27,9 @@
 import { riskWork, type RiskSettings } from "../schemas/risk";
 
 /** Bump when the cost model changes: plans (and so results) of new Runs change with it. */
-export const PLAN_VERSION = 1;
+export const PLAN_VERSION = 2;
 /** Aimed-at duration of one chunk (seconds). */
-export const TARGET_CHUNK_SECONDS = 1.5;
+export const TARGET_CHUNK_SECONDS = 0.75;
 /** Never more chunks than this in one Run (larger chunks instead). */
 export const MAX_CHUNKS = 2_000;
 
