@@ -2,7 +2,9 @@
 
 Reads {"cases": [{"label": str, "matrices": [[[...]]]}], "minBatchSeconds": float}
 from the JSON file named on the command line and prints one JSON object:
-{"numpy": version, "blas": {...}, "results": {label: median seconds per analysis}}.
+{"numpy": version, "blas": {...}, "results": {label: {"wall": s, "cpu": s}}}, the
+median wall-clock and CPU seconds per analysis (CPU time sums all threads, so
+it is comparable to the TypeScript side only with OPENBLAS_NUM_THREADS=1).
 The analysis mirrors what the TypeScript core returns: eig of A and of A^T,
 lambda and lambda_2, w (sum 1), v (v_1 = 1), then S and E as outer products.
 """
@@ -72,13 +74,15 @@ def main():
         one = max(time.perf_counter() - t0, 1e-7)
         per_batch = max(1, int(min_batch / one))
         batches = max(3, min(25, int(3.0 / (one * per_batch))))
-        samples = []
+        wall, cpu = [], []
         for b in range(batches):
             t0 = time.perf_counter()
+            c0 = time.process_time()
             for r in range(per_batch):
                 analyse(mats[(b * per_batch + r) % len(mats)])
-            samples.append((time.perf_counter() - t0) / per_batch)
-        results[case["label"]] = statistics.median(samples)
+            cpu.append((time.process_time() - c0) / per_batch)
+            wall.append((time.perf_counter() - t0) / per_batch)
+        results[case["label"]] = {"wall": statistics.median(wall), "cpu": statistics.median(cpu)}
     print(json.dumps({"numpy": np.__version__, "blas": blas_info(), "results": results}))
 
 
