@@ -300,6 +300,45 @@ describe("the Risk tab", () => {
     );
   });
 
+  it("a matrix set draws from life cycles of the Study with the same stages; others are shown greyed with the reason", async () => {
+    const wet = await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { document: threeStageLifeCycle({ name: "Wet years" }) });
+    expect(wet.status).toBe(201);
+    const two = threeStageLifeCycle({ name: "Two-stage sketch" });
+    const small = await owner.post(`/api/v1/studies/${studyId}/life-cycles`, {
+      document: { ...two, stages: two.stages.slice(0, 2), transitions: two.transitions.filter((t) => t.from !== "st_a" && t.to !== "st_a") },
+    });
+    expect(small.status).toBe(201);
+    await withPage(
+      owner.user,
+      async (page) => {
+        await openRisk(page);
+        await page.getByLabel("One of several life cycles at random").check();
+        await page.getByText("Two-stage sketch — has 2 stages; this one has 3").waitFor();
+        expect(await page.getByRole("checkbox", { name: /Two-stage sketch/ }).count()).toBe(0);
+        await page.getByRole("checkbox", { name: "Heath site (this life cycle)" }).check();
+        await page.getByRole("checkbox", { name: "Wet years" }).check();
+        await page.getByLabel("Weight of Heath site (this life cycle)").fill("0.5");
+        await page.getByLabel("Weight of Wet years").fill("0.6");
+        await page.getByRole("textbox", { name: "Horizon (years)" }).fill("10");
+        await page.getByRole("textbox", { name: "Replicates (simulated futures)" }).fill("1000");
+        await page.getByRole("button", { name: "Start run" }).click();
+        await page.getByText("The weights must sum to 1; they sum to 1.1.").waitFor();
+        await page.getByRole("button", { name: "Equal weights" }).click();
+        expect(await page.getByLabel("Weight of Wet years").inputValue()).toBe("0.5");
+        await expect.poll(() => page.getByText("The weights must sum to 1").count()).toBe(0);
+        await page.getByRole("button", { name: "Start run" }).click();
+        await page.getByTestId("risk-results").waitFor({ timeout: 60_000 });
+        const runs = (await owner.get(`/api/v1/life-cycles/${lifeCycleId}/runs`)).body as { settings: { environment: { kind: string; lifeCycleIds: string[]; weights: number[] } } }[];
+        const environment = runs[0]!.settings.environment;
+        expect(environment.kind).toBe("matrices");
+        expect([...environment.lifeCycleIds].sort()).toEqual([lifeCycleId, wet.body.id as string].sort());
+        expect(environment.weights).toEqual([0.5, 0.5]);
+        await page.getByText(/Life cycles drawn at random \(2\) · 10 years · 1,000 replicates/).waitFor();
+      },
+      "e2e-risk-matrices-failure.png",
+    );
+  });
+
   it("an editor cancels a long Run", async () => {
     await withPage(
       owner.user,

@@ -132,7 +132,7 @@ export function RiskSettingsForm({ lifeCycleId, studyId, document: doc, stableSt
     resolver: riskResolver,
     context,
   });
-  const { register, control, handleSubmit, setValue, getValues, setError, reset, formState } = form;
+  const { register, control, handleSubmit, setValue, getValues, setError, reset, watch, trigger, formState } = form;
   const errors = formState.errors;
   const values = useWatch({ control }) as RiskFormValues;
   const correlations = useFieldArray({ control, name: "correlations" });
@@ -144,6 +144,15 @@ export function RiskSettingsForm({ lifeCycleId, studyId, document: doc, stableSt
   useEffect(() => {
     if (moreHasErrors) setMoreOpen(true);
   }, [moreHasErrors]);
+
+  // After a first try, every change checks the whole form again: many problems concern several inputs at once
+  // (weights that must sum to 1, a threshold against the starting numbers) and sit beside a group, not one input.
+  const submitted = formState.isSubmitted;
+  useEffect(() => {
+    if (!submitted) return;
+    const subscription = watch(() => void trigger());
+    return () => subscription.unsubscribe();
+  }, [submitted, watch, trigger]);
 
   // Keep the draft across tab switches.
   const latest = useRef(getValues);
