@@ -123,7 +123,8 @@ export function RiskSettingsForm({ lifeCycleId, studyId, document: doc, stableSt
   const studyLifeCycles = useMemo(() => lifeCycles.data ?? [], [lifeCycles.data]);
   const context: FormContext = useMemo(() => {
     const same = studyLifeCycles.filter((lc) => lc.stageCount === stageCount).map((lc) => lc.id);
-    return { candidates: same.includes(lifeCycleId) ? same : [lifeCycleId, ...same], rateIds: doc.rates.map((r) => r.id) };
+    // This life cycle first, then the others in the Study's order.
+    return { candidates: [lifeCycleId, ...same.filter((id) => id !== lifeCycleId)], rateIds: doc.rates.map((r) => r.id) };
   }, [studyLifeCycles, stageCount, lifeCycleId, doc.rates]);
 
   const draftKey = `${lifeCycleId}|${doc.stages.map((s) => s.id).join(",")}`;

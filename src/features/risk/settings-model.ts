@@ -189,7 +189,8 @@ export function toSettings(values: RiskFormValues, context: FormContext): RiskSe
   return {
     environment,
     demographic: values.demographic,
-    ...(values.ceilingOn ? { ceiling: num(values.ceiling) as number } : {}),
+    // A ticked ceiling left blank is a problem to report, not a silent "no ceiling".
+    ...(values.ceilingOn ? { ceiling: num(values.ceiling) ?? Number.NaN } : {}),
     initial: values.initial.map((t) => numOrZero(t)),
     horizon: num(values.horizon) as number,
     replicates: num(values.replicates) as number,

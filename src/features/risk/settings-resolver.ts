@@ -28,7 +28,8 @@ function flatten(errors: unknown, prefix: string, out: [string, FieldError][]): 
 export const riskResolver: Resolver<RiskFormValues, FormContext, RiskSettings> = async (values, context, options) => {
   if (!context) throw new Error("The Risk form needs its context (candidate life cycles and rate ids).");
   const settings = toSettings(values, context);
-  const checked = await checkSettings(settings, undefined, { ...options, fields: {}, names: [], shouldUseNativeValidation: false } as unknown as Parameters<typeof checkSettings>[2]);
+  // No field names: zodResolver then nests a list's own problem under `…root`, beside its items' problems, and keeps both.
+  const checked = await checkSettings(settings, undefined, { ...options, fields: {}, names: undefined, shouldUseNativeValidation: false } as unknown as Parameters<typeof checkSettings>[2]);
   const pairs: [string, FieldError][] = [];
   flatten(checked.errors, "", pairs);
   if (pairs.length === 0) return { values: checked.values as RiskSettings, errors: {} };
