@@ -165,6 +165,7 @@ describe("the Risk tab", () => {
         expect(chunks, chunksText).not.toBeNull();
         expect(Number(chunks![2])).toBeGreaterThanOrEqual(2);
         expect(Number(chunks![1])).toBeLessThan(Number(chunks![2]));
+        await page.screenshot({ path: ".data/e2e-risk-progress.png" });
         const runs = (await owner.get(`/api/v1/life-cycles/${lifeCycleId}/runs`)).body as { id: string; settings: { seed: number; initial: number[] } }[];
         expect(runs).toHaveLength(1);
         runId = runs[0]!.id;

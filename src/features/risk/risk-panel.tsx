@@ -62,11 +62,13 @@ export function RiskPanel(props: RiskPanelProps) {
   const [preset, setPreset] = useState<{ values: RiskFormValues; serial: number } | null>(null);
   const stableStage = analysis.data?.stableStage ?? null;
 
-  const reuse = (run: RiskRun) => {
+  /** Loads an earlier Run's settings into the form; false when they no longer read as settings (an older format). */
+  const reuse = (run: RiskRun): boolean => {
     const parsed = RiskSettingsSchema.safeParse(run.settings);
-    if (!parsed.success) return;
+    if (!parsed.success) return false;
     setPreset((p) => ({ values: fromSettings(parsed.data, defaultValues(doc, stableStage, lifeCycleId), doc), serial: (p?.serial ?? 0) + 1 }));
     window.document.getElementById("risk-new-run-heading")?.scrollIntoView({ block: "start" });
+    return true;
   };
 
   return (
@@ -106,7 +108,8 @@ export function RiskPanel(props: RiskPanelProps) {
           {!readOnly && <p className="mt-3 text-xs text-ink/75">A Run uses the saved life cycle (version {version}) and the other life cycles of the Study as they are saved.</p>}
         </div>
 
-        <div className="min-w-0 space-y-4">
+        {/* Sticky beside the long form, so the progress of a Run just started stays in view. */}
+        <div className="min-w-0 space-y-4 self-start xl:sticky xl:top-4">
           <div className="rounded-lg border border-ink/15 bg-white p-5 shadow-sm">
             <h3 className="mb-2 text-lg font-bold">Runs</h3>
             {runs.isPending ? (
@@ -130,9 +133,10 @@ export function RiskPanel(props: RiskPanelProps) {
   );
 }
 
-function ShownRunStatus({ lifeCycleId, runId, readOnly, onReuse }: { lifeCycleId: string; runId: string; readOnly: boolean; onReuse: (run: RiskRun) => void }) {
+function ShownRunStatus({ lifeCycleId, runId, readOnly, onReuse }: { lifeCycleId: string; runId: string; readOnly: boolean; onReuse: (run: RiskRun) => boolean }) {
   const run = useRun(lifeCycleId, runId);
   const cancel = useCancelRun(lifeCycleId);
+  const [reuseFailed, setReuseFailed] = useState(false);
   return (
     <div className="rounded-lg border border-ink/15 bg-white p-5 shadow-sm" aria-labelledby="risk-shown-run-heading">
       <h3 id="risk-shown-run-heading" className="mb-2 text-lg font-bold">
@@ -160,10 +164,11 @@ function ShownRunStatus({ lifeCycleId, runId, readOnly, onReuse }: { lifeCycleId
             </p>
           )}
           {!readOnly && (
-            <Button variant="quiet" size="sm" onClick={() => onReuse(run.data)}>
+            <Button variant="quiet" size="sm" onClick={() => setReuseFailed(!onReuse(run.data))}>
               Put this Run’s settings in the form
             </Button>
           )}
+          {reuseFailed && <p className="text-sm">This Run’s settings were stored by an earlier version of Stagewright and cannot be put in the form; set them by hand.</p>}
         </div>
       )}
     </div>

@@ -18,7 +18,7 @@ export const STATUS_WORDS: Record<RiskRun["status"], string> = {
 
 /** A mark beside the status word, so status never rests on colour. */
 export const STATUS_MARKS: Record<RiskRun["status"], string> = {
-  queued: "…",
+  queued: "○",
   running: "▶",
   succeeded: "✓",
   failed: "✕",

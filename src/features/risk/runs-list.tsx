@@ -13,7 +13,7 @@ export function RunsList({ runs, shownId, onShow, document: doc }: { runs: RunSu
   const risk = runs.filter((r) => r.kind === "risk");
   if (risk.length === 0) return <p className="text-sm text-ink/80">No Risk runs yet for this life cycle.</p>;
   return (
-    <ol className="divide-y divide-ink/10" aria-label="Risk runs of this life cycle, newest first">
+    <ol className="max-h-80 divide-y divide-ink/10 overflow-y-auto" aria-label="Risk runs of this life cycle, newest first">
       {risk.map((run) => {
         const shown = run.id === shownId;
         return (
@@ -34,7 +34,7 @@ export function RunsList({ runs, shownId, onShow, document: doc }: { runs: RunSu
               <p className="text-ink/80">{summariseSettings(run.settings, doc)}</p>
             </div>
             {shown ? (
-              <span className="px-2 py-1 text-sm font-bold text-indigo">Shown below</span>
+              <span className="px-2 py-1 text-sm font-bold text-indigo" aria-current="true">Shown</span>
             ) : (
               <Button variant="secondary" size="sm" onClick={() => onShow(run.id)}>
                 Show<span className="sr-only"> the Run started {new Date(run.createdAt).toLocaleString()}</span>
