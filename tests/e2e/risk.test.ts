@@ -90,8 +90,9 @@ async function withPage(user: { email: string; password: string }, run: (page: P
     await page.screenshot({ path: `.data/${screenshotOnFailure}`, fullPage: true }).catch(() => undefined);
     throw error;
   } finally {
-    await page.context().clearCookies();
+    // Close first: a poll still in flight could otherwise set the session cookie again after it was cleared.
     await page.close();
+    await browser.context.clearCookies();
   }
 }
 
