@@ -1,10 +1,11 @@
 import { randomInt } from "node:crypto";
 import { and, eq, inArray, isNull } from "drizzle-orm";
 import { ZodError } from "zod";
-import { mergeChunks, simulateChunk, type ChunkResult, type StochasticResult } from "../../shared/demography";
+import { mergeChunks, simulateChunk, type ChunkResult } from "../../shared/demography";
 import { upgradeLifeCycle, type LifeCycle } from "../../shared/lifecycle";
-import { buildRiskModel, iucnCriterionE, planChunks, RiskModelError, yearsPerTimeStep, type ChunkPlan, type CriterionEAssessment } from "../../shared/risk";
+import { buildRiskModel, iucnCriterionE, planChunks, RiskModelError, yearsPerTimeStep, type ChunkPlan } from "../../shared/risk";
 import { RiskSettingsSchema, type RiskSettings } from "../../shared/schemas/risk";
+import type { RiskRunResult } from "../../shared/schemas/runs";
 import type { Db } from "../db/client";
 import { lifeCycles } from "../db/schema";
 import { HttpError, zodFields } from "../http/errors";
@@ -18,17 +19,6 @@ export interface RiskInput {
   /** Life cycles used as environments, by id. */
   environments: Record<string, LifeCycle>;
   plan: ChunkPlan;
-}
-
-export interface RiskRunResult extends StochasticResult {
-  stageIds: string[];
-  stageNames: string[];
-  timeStepUnit: string;
-  seed: number;
-  /** Mean age of parents of the mean matrix (projection intervals), used as the generation length. */
-  generationLength: number | null;
-  generationLengthReason: string | null;
-  criterionE: CriterionEAssessment;
 }
 
 const badSettings = (fields: { path: string; message: string }[]) =>

@@ -1,4 +1,6 @@
 import { z } from "zod";
+import type { StochasticResult } from "../demography";
+import type { CriterionEAssessment } from "../risk";
 
 export const RUN_KINDS = ["risk"] as const;
 export const RunKindSchema = z.enum(RUN_KINDS, { error: `The run kind is one of: ${RUN_KINDS.join(", ")}.` });
@@ -32,4 +34,16 @@ export interface RunSummary {
 
 export interface RunRecord<Result = unknown> extends RunSummary {
   result: Result | null;
+}
+
+/** What a finished Risk run holds. */
+export interface RiskRunResult extends StochasticResult {
+  stageIds: string[];
+  stageNames: string[];
+  timeStepUnit: string;
+  seed: number;
+  /** Mean age of parents of the mean matrix (projection intervals), used as the IUCN generation length. */
+  generationLength: number | null;
+  generationLengthReason: string | null;
+  criterionE: CriterionEAssessment;
 }

@@ -6,26 +6,12 @@
  */
 import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useEffect } from "react";
-import type { StochasticResult } from "../../shared/demography";
-import type { CriterionEAssessment } from "../../shared/risk";
 import type { RiskSettings, RiskSettingsInput } from "../../shared/schemas/risk";
-import type { RunRecord, RunStatus, RunSummary } from "../../shared/schemas/runs";
+import type { RiskRunResult, RunRecord, RunStatus, RunSummary } from "../../shared/schemas/runs";
 import { api, segment } from "./client";
 import { queryKeys } from "./keys";
 
-export type { RunRecord, RunStatus, RunSummary };
-
-/** What a finished Risk run holds (the server's RiskRunResult, built from the shared core's types). */
-export interface RiskRunResult extends StochasticResult {
-  stageIds: string[];
-  stageNames: string[];
-  timeStepUnit: string;
-  seed: number;
-  /** Mean age of parents of the mean matrix (projection intervals), the IUCN generation length. */
-  generationLength: number | null;
-  generationLengthReason: string | null;
-  criterionE: CriterionEAssessment;
-}
+export type { RiskRunResult, RunRecord, RunStatus, RunSummary };
 
 export type RiskRun = RunRecord<RiskRunResult>;
 
