@@ -328,10 +328,15 @@ describe("the Risk tab", () => {
         await page.getByRole("button", { name: "Equal weights" }).click();
         expect(await page.getByLabel("Weight of Wet years").inputValue()).toBe("0.5");
         await expect.poll(() => page.getByText("The weights must sum to 1").count()).toBe(0);
+        // Earlier tests' Runs are on the same life cycle: wait for this one to exist, then for its results.
+        const listRuns = async () =>
+          (await owner.get(`/api/v1/life-cycles/${lifeCycleId}/runs`)).body as { status: string; settings: { environment: { kind: string; lifeCycleIds: string[]; weights: number[] } } }[];
+        const before = (await listRuns()).length;
         await page.getByRole("button", { name: "Start run" }).click();
+        await expect.poll(async () => (await listRuns()).length, { timeout: 30_000 }).toBe(before + 1);
+        await expect.poll(async () => (await listRuns())[0]!.status, { timeout: 60_000 }).toBe("succeeded");
         await page.getByTestId("risk-results").waitFor({ timeout: 60_000 });
-        const runs = (await owner.get(`/api/v1/life-cycles/${lifeCycleId}/runs`)).body as { settings: { environment: { kind: string; lifeCycleIds: string[]; weights: number[] } } }[];
-        const environment = runs[0]!.settings.environment;
+        const environment = (await listRuns())[0]!.settings.environment;
         expect(environment.kind).toBe("matrices");
         expect([...environment.lifeCycleIds].sort()).toEqual([lifeCycleId, wet.body.id as string].sort());
         expect(environment.weights).toEqual([0.5, 0.5]);
