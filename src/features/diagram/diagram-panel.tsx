@@ -28,7 +28,7 @@ import { layoutStages } from "./auto-layout";
 import type { StageNode, StageReadout, TransitionEdge } from "./diagram-types";
 import { KIND_LABELS, addStage, addTransition, arrowName, moveStages, removeElements, stageName } from "./document-edits";
 import { diagramSvg, downloadBlob, fileSlug, svgToPng } from "./export-diagram";
-import { DEFAULT_STAGE_SIZE, type Rect, arrowLanes } from "./geometry";
+import { DEFAULT_STAGE_SIZE, type Lane, type Rect, arrowLanes } from "./geometry";
 import { CLAY, REPRODUCTION_DASH, SPRUCE } from "./palette";
 import { rateLabel, rateToText } from "./rate-text";
 import { STALE_LONG, formatElasticity, staleReason } from "./readouts";
@@ -46,6 +46,33 @@ const survivalMarker = markerFor(SPRUCE);
 const reproductionMarker = markerFor(CLAY);
 
 type Size = { width: number; height: number };
+
+/** Elasticities when arrows are not shaded by them: none, and always the same map. */
+const NO_ELASTICITIES: ReadonlyMap<string, number> = new Map();
+
+/** Two arrows that draw the same (React Flow re-renders an arrow only when its object changes). */
+function sameEdge(a: TransitionEdge, b: TransitionEdge): boolean {
+  const p = a.data!;
+  const q = b.data!;
+  return (
+    a.source === b.source &&
+    a.target === b.target &&
+    a.selected === b.selected &&
+    a.markerEnd === b.markerEnd &&
+    a.ariaLabel === b.ariaLabel &&
+    p.kind === q.kind &&
+    p.label === q.label &&
+    p.shade === q.shade &&
+    p.elasticityText === q.elasticityText &&
+    p.problem === q.problem &&
+    sameLane(p.lane, q.lane)
+  );
+}
+
+function sameLane(a: Lane, b: Lane): boolean {
+  if (a.loop !== null || b.loop !== null) return a.loop === b.loop;
+  return a.offset === b.offset && a.scaleWithLength === b.scaleWithLength;
+}
 
 /** A stage click this soon after an arrow was drawn is the end of that drag, not a new selection. */
 const CLICK_AFTER_CONNECT_MS = 300;
@@ -103,6 +130,8 @@ function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSe
     return max;
   }, [elasticities]);
   const shading = shadeByElasticity && elasticities.size > 0 && maxElasticity > 0;
+  // Unshaded arrows do not depend on the analysis, so a new result does not rebuild them.
+  const arrowElasticity = shading ? elasticities : NO_ELASTICITIES;
 
   /** Arrows whose rate the server could not compute, by index in the document (fields `document.transitions.N.rate`). */
   const computeProblems = useMemo(() => {
@@ -142,30 +171,38 @@ function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSe
 
   const lanes = useMemo(() => arrowLanes(document.transitions, rects), [document.transitions, rects]);
 
-  const edges = useMemo<TransitionEdge[]>(
-    () =>
-      document.transitions.map((t) => {
-        const e = elasticities.get(t.id);
-        return {
-          id: t.id,
-          source: t.from,
-          target: t.to,
-          type: "transition",
-          selected: selection?.kind === "transition" && selection.id === t.id,
-          markerEnd: t.kind === "reproduction" ? reproductionMarker : survivalMarker,
-          ariaLabel: `${KIND_LABELS[t.kind]} arrow ${arrowName(document, t)}, rate ${rateToText(t.rate)}`,
-          data: {
-            kind: t.kind,
-            label: rateLabel(t.rate),
-            lane: lanes.get(t.id) ?? { loop: null, offset: 0, scaleWithLength: false },
-            shade: shading && e !== undefined ? e / maxElasticity : null,
-            elasticityText: shading && e !== undefined ? formatElasticity(e) : null,
-            problem: computeProblems.has(t.id),
-          },
-        };
-      }),
-    [document, selection, lanes, elasticities, shading, maxElasticity, computeProblems],
-  );
+  // An edit changes one or two arrows: the others keep their objects, so React Flow
+  // re-draws only what changed (re-drawing all of them costs tens of ms at 150 arrows).
+  const previousEdges = useRef<ReadonlyMap<string, TransitionEdge>>(new Map());
+  const edges = useMemo<TransitionEdge[]>(() => {
+    const reuse = new Map<string, TransitionEdge>();
+    const list = document.transitions.map((t) => {
+      const e = arrowElasticity.get(t.id);
+      const edge: TransitionEdge = {
+        id: t.id,
+        source: t.from,
+        target: t.to,
+        type: "transition",
+        selected: selection?.kind === "transition" && selection.id === t.id,
+        markerEnd: t.kind === "reproduction" ? reproductionMarker : survivalMarker,
+        ariaLabel: `${KIND_LABELS[t.kind]} arrow ${arrowName(document, t)}, rate ${rateToText(t.rate)}`,
+        data: {
+          kind: t.kind,
+          label: rateLabel(t.rate),
+          lane: lanes.get(t.id) ?? { loop: null, offset: 0, scaleWithLength: false },
+          shade: e !== undefined ? e / maxElasticity : null,
+          elasticityText: e !== undefined ? formatElasticity(e) : null,
+          problem: computeProblems.has(t.id),
+        },
+      };
+      const before = previousEdges.current.get(t.id);
+      const kept = before && sameEdge(before, edge) ? before : edge;
+      reuse.set(t.id, kept);
+      return kept;
+    });
+    previousEdges.current = reuse;
+    return list;
+  }, [document, selection, lanes, arrowElasticity, maxElasticity, computeProblems]);
 
   // ----------------------------------------------------------------- changes
   const onNodesChange = useCallback(

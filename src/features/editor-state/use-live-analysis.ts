@@ -8,7 +8,7 @@
 import { useQueryClient } from "@tanstack/react-query";
 import { useEffect, useMemo, useState } from "react";
 import type { LifeCycle } from "../../../shared/lifecycle";
-import { useDraftAnalysis, type LifeCycleAnalysis } from "../../api/analysis";
+import { draftAnalysisQueryOptions, useDraftAnalysis, type LifeCycleAnalysis } from "../../api/analysis";
 import { ApiError } from "../../api/client";
 import { queryKeys } from "../../api/keys";
 import type { AnalysisState } from "../../lib/editor-types";
@@ -19,12 +19,16 @@ export const ANALYSIS_DEBOUNCE_MS = 150;
 interface Revision {
   revision: number;
   document: LifeCycle;
+  /** When the change that made it happened (ms since epoch), if known. */
+  at?: number;
 }
 
 interface Outcome {
   revision: number;
   data?: LifeCycleAnalysis;
   error?: ApiError;
+  /** The query's data or error object this outcome was made from (to notice a new one). */
+  from: unknown;
 }
 
 export function useLiveAnalysis(lifeCycleId: string, present: Revision): AnalysisState {
@@ -39,7 +43,13 @@ export function useLiveAnalysis(lifeCycleId: string, present: Revision): Analysi
       setRequested(present);
       return;
     }
-    const timer = window.setTimeout(() => setRequested(present), ANALYSIS_DEBOUNCE_MS);
+    // The pause counts from the change itself, not from the end of the render that showed it.
+    const wait = present.at === undefined ? ANALYSIS_DEBOUNCE_MS : Math.min(ANALYSIS_DEBOUNCE_MS, Math.max(0, present.at + ANALYSIS_DEBOUNCE_MS - Date.now()));
+    const timer = window.setTimeout(() => {
+      // The request leaves now; the render that observes it runs while the server computes.
+      if (present.document.stages.length > 0) void queryClient.prefetchQuery(draftAnalysisQueryOptions(lifeCycleId, present.revision, present.document));
+      setRequested(present);
+    }, wait);
     return () => window.clearTimeout(timer);
   }, [present, requested.revision, lifeCycleId, queryClient]);
 
@@ -47,20 +57,20 @@ export function useLiveAnalysis(lifeCycleId: string, present: Revision): Analysi
   const query = useDraftAnalysis(lifeCycleId, requested.revision, requested.document, hasStages);
 
   // The newest settled outcome and the newest good result, each with the revision it describes.
+  // They are taken in during the render that sees the answer (React re-runs this component
+  // at once, before its children), not in an effect, which would cost a second render of
+  // the whole editor and a frame before λ shows as current.
   const [settled, setSettled] = useState<Outcome | null>(null);
   const [good, setGood] = useState<Outcome | null>(null);
-  const fresh = !query.isPlaceholderData && !query.isFetching;
-  useEffect(() => {
-    if (!hasStages || !fresh) return;
-    if (query.isSuccess) {
-      const outcome = { revision: requested.revision, data: query.data };
-      setSettled(outcome);
-      setGood(outcome);
-    } else if (query.isError) {
-      const error = query.error instanceof ApiError ? query.error : new ApiError(0, "error", String(query.error));
-      setSettled({ revision: requested.revision, error });
-    }
-  }, [hasStages, fresh, query.isSuccess, query.isError, query.data, query.error, requested.revision]);
+  const fresh = hasStages && !query.isPlaceholderData && !query.isFetching;
+  if (fresh && query.isSuccess && (settled?.revision !== requested.revision || settled.from !== query.data)) {
+    const outcome = { revision: requested.revision, data: query.data, from: query.data };
+    setSettled(outcome);
+    setGood(outcome);
+  } else if (fresh && query.isError && (settled?.revision !== requested.revision || settled.from !== query.error)) {
+    const error = query.error instanceof ApiError ? query.error : new ApiError(0, "error", String(query.error));
+    setSettled({ revision: requested.revision, error, from: query.error });
+  }
 
   return useMemo<AnalysisState>(() => {
     if (present.document.stages.length === 0) return { data: undefined, stale: false, pending: false, error: null };
