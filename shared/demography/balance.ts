@@ -37,15 +37,17 @@ export function balance(a: Float64Array, n: number): { matrix: Float64Array; d: 
     for (let i = 0; i < n; i++) {
       const c = col[i] as number;
       const r = row[i] as number;
-      if (c === 0 || r === 0) continue;
-      // f = power of 2 with c·f² ≈ r: column i ×f, row i ÷f.
+      // The running sums can drift a hair below zero (seen: −2.4e−19), and a
+      // non-positive sum would make the loops below run forever: skip it.
+      if (!(c > 0) || !(r > 0) || !Number.isFinite(c) || !Number.isFinite(r)) continue;
+      // f = power of 2 with c·f² ≈ r: column i ×f, row i ÷f (bounded: doubles span 2^±1074).
       let f = 1;
       let cf = c;
-      while (cf < r / 2) {
+      for (let k = 0; cf < r / 2 && k < 1100; k++) {
         f *= 2;
         cf *= 4;
       }
-      while (cf > 2 * r) {
+      for (let k = 0; cf > 2 * r && k < 1100; k++) {
         f /= 2;
         cf /= 4;
       }
