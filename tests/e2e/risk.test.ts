@@ -46,6 +46,13 @@ afterAll(async () => {
 });
 
 async function signIn(page: Page, user: { email: string; password: string }) {
+  // A late response from the previous test's page can set its session cookie again after
+  // the cookies were cleared: end any session first, then open the sign-in form.
+  await page.goto(`${server.url}/sign-in`);
+  await page.evaluate(async () => {
+    const csrf = decodeURIComponent(document.cookie.split("; ").find((c) => c.startsWith("sw_csrf="))?.slice("sw_csrf=".length) ?? "");
+    await fetch("/api/v1/auth/sign-out", { method: "POST", headers: { "X-CSRF-Token": csrf } });
+  });
   await page.goto(`${server.url}/sign-in`);
   await page.getByLabel("E-mail").fill(user.email);
   await page.getByLabel("Password").fill(user.password);
