@@ -174,7 +174,7 @@ export function runBin(pkgBin, args, env = {}) {
 
 /** Builds the client when dist/ is missing or older than any client source. */
 export function ensureClientBuild({ force = false, outDir = "dist" } = {}) {
-  const stamp = path.join(root, outDir, "index.html");
+  const stamp = path.resolve(root, outDir, "index.html");
   const newest = (p) => {
     const st = fs.statSync(p);
     if (!st.isDirectory()) return st.mtimeMs;
