@@ -22,8 +22,8 @@ export const DEMO_USERS: { email: string; name: string; role: Role }[] = [
 ];
 export const DEMO_STUDY_NAME = "Brannock fen newt — Brannock Fen and Kessel Marsh";
 const DEMO_STUDY_DESCRIPTION =
-  "Demo data: an invented amphibian (the Brannock fen newt, Paludotriton brannockensis) at two invented wetland sites. " +
-  "Fifteen years of pond counts and a few hundred marked individuals, used to show what Stagewright does. Nothing here describes a real population.";
+  "Demo data: an invented amphibian (the Brannock fen newt, Paludotriton brannockensis) at two invented wetland sites, " +
+  "one life cycle per site with rates from invented mark–recapture seasons, used to show what Stagewright does. Nothing here describes a real population.";
 
 interface DemoSite {
   name: string;
