@@ -3,17 +3,8 @@
 // sources. Each test file names the source again beside every check.
 import { expect } from "vitest";
 
-/** Seeded uniform [0, 1) generator (mulberry32): every random test is reproducible. */
-export function seeded(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** Seeded uniform [0, 1) generator (mulberry32), shared with the benchmarks: every random test is reproducible. */
+export { seededRandom as seeded } from "../../bench/matrices";
 
 /**
  * A random non-negative primitive matrix: a loop through every stage
