@@ -133,7 +133,7 @@ export function sizeClassLifeCycle(): LifeCycle {
     if (i >= 31) arrow(`tr_f${pad(i)}`, i, 1, "reproduction", `b_${k} * m_${k} * w_${i} * e_0 * sr`);
     if (i >= 46) arrow(`tr_e${pad(i)}`, i, 2, "reproduction", `b_${k} * m_${k} * w_${i} * e_1 * sr`);
   }
-  return { stagewright: 1, name: "Bench: 50 size classes", census: "pre-breeding", timeStepUnit: "year", stages, rates, transitions };
+  return { stagewright: 2, name: "Bench: 50 size classes", census: "pre-breeding", timeStepUnit: "year", stages, rates, transitions };
 }
 
 /** λ to 4 decimals from the numerical core, on the matrix the document gives. */

@@ -16,6 +16,8 @@ export {
   MAX_RATE_NAME_LENGTH,
   CENSUS_TIMINGS,
   TRANSITION_KINDS,
+  RATE_SCALES,
+  MAX_CORRELATIONS,
   LifeCycleSchema,
   StageSchema,
   VitalRateSchema,
@@ -24,6 +26,9 @@ export {
   CensusSchema,
   ConfidenceIntervalSchema,
   emptyLifeCycle,
+  rateScale,
+  scaleBounds,
+  type RateScale,
   type LifeCycle,
   type LifeCycleInput,
   type Stage,
@@ -35,6 +40,34 @@ export {
   type EmptyLifeCycleOptions,
 } from "./schema";
 export { newId, ID_PATTERN, type IdPrefix } from "./ids";
+export {
+  RateCountsSchema,
+  RateDistributionSchema,
+  RateCorrelationSchema,
+  type RateCounts,
+  type RateDistribution,
+  type RateCorrelation,
+} from "./uncertainty";
+export {
+  ScenarioSchema,
+  ScenarioChangeSchema,
+  ScenarioTargetSchema,
+  SCENARIO_OPERATIONS,
+  MAX_SCENARIOS,
+  MAX_SCENARIO_CHANGES,
+  type Scenario,
+  type ScenarioChange,
+  type ScenarioTarget,
+} from "./scenarios";
+export {
+  ThermalResponseSchema,
+  WarmingTrajectorySchema,
+  ClimateSettingsSchema,
+  THERMAL_TARGETS,
+  type ThermalResponse,
+  type WarmingTrajectory,
+  type ClimateSettings,
+} from "./thermal";
 export {
   ageClassTemplate,
   stageTemplate,

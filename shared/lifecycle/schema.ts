@@ -3,11 +3,11 @@
  * model (stages, named vital rates, arrows). It is versioned by the
  * `stagewright` field; `upgrade.ts` brings older documents up to date.
  *
- * Example (version 1):
+ * Example (version 2):
  *
  * ```json
  * {
- *   "stagewright": 1,
+ *   "stagewright": 2,
  *   "name": "Hillside population",
  *   "census": "pre-breeding",
  *   "timeStepUnit": "year",
@@ -16,7 +16,7 @@
  *     { "id": "st_adu", "name": "Adult", "position": { "x": 200, "y": 0 }, "color": "#2f6b5a" }
  *   ],
  *   "rates": [
- *     { "id": "vr_sj", "name": "s_j", "value": 0.4, "se": 0.05, "source": "Field data 2019–2023" },
+ *     { "id": "vr_sj", "name": "s_j", "value": 0.4, "scale": "probability", "counts": { "k": 40, "n": 100 }, "source": "Field data 2019–2023" },
  *     { "id": "vr_sa", "name": "s_a", "value": 0.8, "ci": { "lower": 0.72, "upper": 0.86, "level": 0.95 } },
  *     { "id": "vr_m", "name": "m", "value": 1.5, "unit": "female offspring per female" }
  *   ],
@@ -30,13 +30,20 @@
  *
  * An arrow from stage j to stage i is the matrix entry a_ij (row i, column j);
  * reproduction arrows form F, all other kinds U, and A = U + F.
+ *
+ * Version 2 added optional fields only: a rate's `scale`, `datasetId`,
+ * `counts`, `distribution` and `thermal`; the document's `correlations`,
+ * `scenarios` and `climate` (see uncertainty.ts, scenarios.ts, thermal.ts).
  */
 import { z } from "zod";
 import { checkFormula, MAX_FORMULA_LENGTH, MAX_RATE_NAME_LENGTH, rateNameProblem } from "./formula";
 import { ID_PATTERN } from "./ids";
+import { checkScenarioRules, MAX_SCENARIOS, ScenarioSchema } from "./scenarios";
+import { checkThermalRules, ClimateSettingsSchema, ThermalResponseSchema } from "./thermal";
+import { checkUncertaintyRules, RateCorrelationSchema, RateCountsSchema, RateDistributionSchema } from "./uncertainty";
 
 /** The document format this build writes; older versions are upgraded on read. */
-export const LIFE_CYCLE_SCHEMA_VERSION = 1;
+export const LIFE_CYCLE_SCHEMA_VERSION = 2;
 
 export const MAX_STAGES = 500;
 export const MAX_RATES = 1000;
@@ -54,6 +61,10 @@ export { MAX_FORMULA_LENGTH, MAX_RATE_NAME_LENGTH };
 
 export const CENSUS_TIMINGS = ["pre-breeding", "post-breeding"] as const;
 export const TRANSITION_KINDS = ["growth", "stasis", "shrinkage", "reproduction"] as const;
+/** The range a vital rate may take: a probability in [0, 1], a non-negative rate, or any number. */
+export const RATE_SCALES = ["probability", "non-negative", "unbounded"] as const;
+/** Most sampling correlations between rates. */
+export const MAX_CORRELATIONS = 5_000;
 
 const IdSchema = z.string({ error: "An id is text." }).regex(ID_PATTERN, "An id is 1 to 64 letters, digits, _ or -.");
 
@@ -112,6 +123,16 @@ export const VitalRateSchema = z.strictObject({
   notes: NotesSchema,
   /** Where the value comes from (citation, data set). */
   source: z.string().max(MAX_SOURCE_LENGTH, `A source has at most ${MAX_SOURCE_LENGTH} characters.`).optional(),
+  /** The range the rate may take; when absent, rateScale() infers it from the value. */
+  scale: z.enum(RATE_SCALES, { error: 'The scale is "probability", "non-negative" or "unbounded".' }).optional(),
+  /** The Field-data dataset the value was estimated from. */
+  datasetId: z.uuid({ error: "A dataset id is a UUID." }).optional(),
+  /** k of n: the binomial data behind a probability. */
+  counts: RateCountsSchema.optional(),
+  /** An explicit distribution of the value. */
+  distribution: RateDistributionSchema.optional(),
+  /** How the rate changes with temperature. */
+  thermal: ThermalResponseSchema.optional(),
 });
 
 export const TransitionSchema = z.strictObject({
@@ -142,6 +163,12 @@ const LifeCycleObjectSchema = z.strictObject({
   stages: z.array(StageSchema).max(MAX_STAGES, `A life cycle has at most ${MAX_STAGES} stages.`),
   rates: z.array(VitalRateSchema).max(MAX_RATES, `A life cycle has at most ${MAX_RATES} vital rates.`),
   transitions: z.array(TransitionSchema).max(MAX_TRANSITIONS, `A life cycle has at most ${MAX_TRANSITIONS} arrows.`),
+  /** Correlations between the sampling errors of rates. */
+  correlations: z.array(RateCorrelationSchema).max(MAX_CORRELATIONS, `At most ${MAX_CORRELATIONS} correlations.`).optional(),
+  /** Management scenarios (Levers). */
+  scenarios: z.array(ScenarioSchema).max(MAX_SCENARIOS, `A life cycle has at most ${MAX_SCENARIOS} scenarios.`).optional(),
+  /** Temperature range and warming trajectory (Climate). */
+  climate: ClimateSettingsSchema.optional(),
 });
 
 type LifeCycleObject = z.infer<typeof LifeCycleObjectSchema>;
@@ -161,6 +188,10 @@ function checkCrossFieldRules(doc: LifeCycleObject, ctx: z.RefinementCtx): void 
   doc.stages.forEach((s, i) => claimId(s.id, `stages.${i}`, ["stages", i, "id"]));
   doc.rates.forEach((r, i) => claimId(r.id, `rates.${i}`, ["rates", i, "id"]));
   doc.transitions.forEach((t, i) => claimId(t.id, `transitions.${i}`, ["transitions", i, "id"]));
+  doc.scenarios?.forEach((s, i) => {
+    claimId(s.id, `scenarios.${i}`, ["scenarios", i, "id"]);
+    s.changes.forEach((c, j) => claimId(c.id, `scenarios.${i}.changes.${j}`, ["scenarios", i, "changes", j, "id"]));
+  });
 
   const stageById = new Map<string, { name: string }>();
   const stageNames = new Map<string, number>();
@@ -223,6 +254,11 @@ function checkCrossFieldRules(doc: LifeCycleObject, ctx: z.RefinementCtx): void 
       }
     }
   });
+
+  const areaIssue = (path: (string | number)[], message: string) => issue(path, message);
+  checkUncertaintyRules(doc, areaIssue);
+  checkScenarioRules(doc, areaIssue);
+  checkThermalRules(doc, areaIssue);
 }
 
 /** A complete, valid life-cycle document (current version). */
@@ -236,6 +272,25 @@ export type Transition = z.infer<typeof TransitionSchema>;
 export type TransitionKind = z.infer<typeof TransitionKindSchema>;
 export type Census = z.infer<typeof CensusSchema>;
 export type ConfidenceInterval = z.infer<typeof ConfidenceIntervalSchema>;
+export type RateScale = (typeof RATE_SCALES)[number];
+
+/**
+ * The range a rate may take: its `scale`, or when absent a guess from its
+ * value (0–1 → probability, above 1 → non-negative, below 0 → unbounded).
+ * The Rates table shows the result so a user can correct a wrong guess.
+ */
+export function rateScale(rate: Pick<VitalRate, "value" | "scale">): RateScale {
+  if (rate.scale !== undefined) return rate.scale;
+  if (rate.value >= 0 && rate.value <= 1) return "probability";
+  return rate.value > 1 ? "non-negative" : "unbounded";
+}
+
+/** The closed interval of values allowed on a scale. */
+export function scaleBounds(scale: RateScale): { lower: number; upper: number } {
+  if (scale === "probability") return { lower: 0, upper: 1 };
+  if (scale === "non-negative") return { lower: 0, upper: Infinity };
+  return { lower: -Infinity, upper: Infinity };
+}
 
 export interface EmptyLifeCycleOptions {
   /** Default "pre-breeding". */

@@ -14,8 +14,17 @@ export type RawDocument = Record<string, unknown>;
 /** Turns a document of version v into version v + 1 (the runner sets the `stagewright` field). */
 export type UpgradeStep = (doc: RawDocument) => RawDocument;
 
-/** Upgrade steps keyed by the version they upgrade from. None yet: version 1 is the first format. */
-export const UPGRADE_STEPS: Readonly<Record<number, UpgradeStep>> = Object.freeze({});
+/**
+ * Version 1 → 2 added optional fields only (rate scale, dataset, counts,
+ * distribution, thermal response; correlations, scenarios, climate), so a
+ * version-1 document is a valid version-2 document once relabelled.
+ */
+function fromVersion1(doc: RawDocument): RawDocument {
+  return doc;
+}
+
+/** Upgrade steps keyed by the version they upgrade from. */
+export const UPGRADE_STEPS: Readonly<Record<number, UpgradeStep>> = Object.freeze({ 1: fromVersion1 });
 
 export type LifeCycleUpgradeErrorCode = "not-an-object" | "missing-version" | "invalid-version" | "newer-version" | "no-upgrade-path";
 

@@ -2,7 +2,7 @@ import { eq } from "drizzle-orm";
 import supertest from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analyzeMatrix } from "../../shared/demography";
-import { auditEvents, lifeCycles } from "../../server/db/schema";
+import { auditEvents, lifeCycles, snapshots } from "../../server/db/schema";
 import { createApiToken } from "../../server/services/api-tokens";
 import { THREE_STAGE_MATRIX, threeStageLifeCycle } from "../factories/life-cycles";
 import { signUpAgent, startTestServer, type TestServer } from "../helpers/server";
@@ -29,7 +29,7 @@ describe("life cycles", () => {
     expect(lifeCycle).toMatchObject({ name: "Three-stage test", version: 1, stageCount: 3 });
     expect(lifeCycle.document).toEqual(threeStageLifeCycle());
     const blank = await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { name: "Blank one" });
-    expect(blank.body.document).toMatchObject({ stagewright: 1, name: "Blank one", stages: [], transitions: [] });
+    expect(blank.body.document).toMatchObject({ stagewright: 2, name: "Blank one", stages: [], transitions: [] });
     const list = await owner.get(`/api/v1/studies/${studyId}/life-cycles`);
     expect(list.body.map((l: { name: string }) => l.name).sort()).toEqual(["Blank one", "Three-stage test"]);
   });
@@ -95,6 +95,22 @@ describe("snapshots", () => {
     expect((await owner.get(`/api/v1/snapshots/${s1.body.id}`)).body.document).toEqual(threeStageLifeCycle());
     const stale = await owner.post(`/api/v1/life-cycles/${lifeCycle.id}/snapshots/${s1.body.id}/restore`, { version: 2 });
     expect(stale.status).toBe(409);
+  });
+
+  it("reads and restores a snapshot stored in format version 1 as the current version", async () => {
+    const { owner, lifeCycle } = await setup();
+    const s1 = await owner.post(`/api/v1/life-cycles/${lifeCycle.id}/snapshots`, { message: "old format" });
+    // Store it as an earlier build wrote it: version 1 had none of the version-2 fields.
+    const old = { ...threeStageLifeCycle(), stagewright: 1 };
+    await server.db.update(snapshots).set({ document: old, schemaVersion: 1 }).where(eq(snapshots.id, s1.body.id));
+    await server.db.update(lifeCycles).set({ document: old, schemaVersion: 1 }).where(eq(lifeCycles.id, lifeCycle.id));
+    const read = await owner.get(`/api/v1/snapshots/${s1.body.id}`);
+    expect(read.body.document).toEqual(threeStageLifeCycle());
+    expect((await owner.get(`/api/v1/life-cycles/${lifeCycle.id}`)).body.document.stagewright).toBe(2);
+    const restored = await owner.post(`/api/v1/life-cycles/${lifeCycle.id}/snapshots/${s1.body.id}/restore`, { version: 1 });
+    expect(restored.status).toBe(200);
+    const [row] = await server.db.select().from(lifeCycles).where(eq(lifeCycles.id, lifeCycle.id));
+    expect(row).toMatchObject({ schemaVersion: 2, document: threeStageLifeCycle() });
   });
 });
 

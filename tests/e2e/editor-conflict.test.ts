@@ -25,7 +25,7 @@ afterAll(async () => {
 
 /** A small invented life cycle: two stages, three arrows. */
 const marshDocument: LifeCycle = {
-  stagewright: 1,
+  stagewright: 2,
   name: "Reed marsh voles",
   census: "pre-breeding",
   timeStepUnit: "year",

@@ -22,7 +22,7 @@ let studyId: string;
 /** A small invented life cycle with formulas; `s_j2` is there to prove renames work by whole names. */
 function newtLifeCycle(overrides: Partial<LifeCycle> = {}): LifeCycle {
   return LifeCycleSchema.parse({
-    stagewright: 1,
+    stagewright: 2,
     name: "Kessel Marsh newts",
     census: "pre-breeding",
     timeStepUnit: "year",

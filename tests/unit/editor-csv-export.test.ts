@@ -5,7 +5,7 @@ import { escapeCsvCell, fileStem, lifeCycleJson, matrixCsv, resultsCsv, toCsv } 
 
 function lifeCycle(overrides: Partial<LifeCycle> = {}): LifeCycle {
   return LifeCycleSchema.parse({
-    stagewright: 1,
+    stagewright: 2,
     name: "=cmd|' /C calc'!A0",
     census: "pre-breeding",
     timeStepUnit: "year",
@@ -137,7 +137,7 @@ describe("life-cycle JSON", () => {
   it("round-trips exactly through the document reader", () => {
     const doc = lifeCycle({ notes: "Line one\nline two", rates: [{ id: "vr_sj", name: "s_j", value: 0.1 + 0.2, ci: { lower: 0.2, upper: 0.45, level: 0.95 } }, { id: "vr_sa", name: "s_a", value: 1e-17 }, { id: "vr_m", name: "m", value: 12345.678 }] });
     const text = lifeCycleJson(doc);
-    expect(JSON.parse(text)).toMatchObject({ stagewright: 1 });
+    expect(JSON.parse(text)).toMatchObject({ stagewright: 2 });
     expect(upgradeLifeCycle(JSON.parse(text))).toEqual(doc);
     expect(lifeCycleJson(upgradeLifeCycle(JSON.parse(text)))).toBe(text);
   });

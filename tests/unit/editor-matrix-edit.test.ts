@@ -4,7 +4,7 @@ import { availableKinds, defaultKind, replaceFormulaWithNumber, setArrowKind, se
 
 function lifeCycle(overrides: Partial<LifeCycle> = {}): LifeCycle {
   return LifeCycleSchema.parse({
-    stagewright: 1,
+    stagewright: 2,
     name: "Three stages",
     census: "post-breeding",
     timeStepUnit: "year",

@@ -6,7 +6,7 @@ import { arrowsUsingRates, parseNumberInput, probabilityWarnings, rateNameError 
 
 function lifeCycle(overrides: Partial<LifeCycle> = {}): LifeCycle {
   return LifeCycleSchema.parse({
-    stagewright: 1,
+    stagewright: 2,
     name: "Test population",
     census: "pre-breeding",
     timeStepUnit: "year",

@@ -4,7 +4,7 @@ import { diffLifeCycles } from "../../src/features/history/snapshot-diff";
 
 function lifeCycle(overrides: Partial<LifeCycle> = {}): LifeCycle {
   return LifeCycleSchema.parse({
-    stagewright: 1,
+    stagewright: 2,
     name: "Marsh population",
     census: "pre-breeding",
     timeStepUnit: "year",

@@ -17,7 +17,7 @@ const rate = (name: string, value: number) => ({ id: `vr_${name}`, name, value }
 const arrow = (id: string, from: string, to: string, kind: TransitionKind, r: number | string) => ({ id, from, to, kind, rate: r });
 
 function lifeCycle(parts: Partial<LifeCycleInput>): LifeCycle {
-  return LifeCycleSchema.parse({ stagewright: 1, name: "Test", census: "pre-breeding", timeStepUnit: "year", stages: [], rates: [], transitions: [], ...parts });
+  return LifeCycleSchema.parse({ stagewright: 2, name: "Test", census: "pre-breeding", timeStepUnit: "year", stages: [], rates: [], transitions: [], ...parts });
 }
 
 // The Leslie life table of METHODS.md §1 [derived; Caswell 2001 §2]:

@@ -9,13 +9,14 @@ import {
   MAX_RATES,
   MAX_STAGES,
   newId,
+  rateScale,
   type LifeCycleInput,
 } from "../../shared/lifecycle";
 
 /** A complete, valid document using every field; override parts per test. */
 function validDocument(overrides: Partial<LifeCycleInput> = {}): LifeCycleInput {
   return {
-    stagewright: 1,
+    stagewright: LIFE_CYCLE_SCHEMA_VERSION,
     name: "Hillside population",
     census: "pre-breeding",
     timeStepUnit: "year",
@@ -189,12 +190,60 @@ describe("LifeCycleSchema", () => {
     expect(issuesAt(ordered, "rates.1.ci.upper")[0]!.message).toBe("The upper bound is below the lower bound.");
   });
 
+  it("accepts the version-2 fields: scale, counts, distribution, thermal response, correlations, scenarios, climate", () => {
+    const doc = validDocument({
+      correlations: [{ a: "vr_sj", b: "vr_sa", r: 0.4 }],
+      scenarios: [
+        {
+          id: "sc_fence",
+          name: "Fence the breeding pond",
+          action: "Invented: fence against trampling",
+          cost: 12,
+          changes: [
+            { id: "ch_1", target: { kind: "rate", rateId: "vr_sa" }, op: "multiply", value: 1.1 },
+            { id: "ch_2", target: { kind: "entry", from: "st_seed", to: "st_juv" }, op: "set", value: 0.08 },
+          ],
+        },
+      ],
+      climate: { range: { min: 0, max: 35 }, trajectory: { kind: "trend", startYear: 2025, years: 50, baseline: 14, trendPerDecade: 0.3, sd: 0.6 } },
+    });
+    doc.rates[0] = { ...doc.rates[0]!, scale: "probability", counts: { k: 40, n: 100 }, distribution: { family: "beta", alpha: 40, beta: 60 } };
+    doc.rates[3] = { ...doc.rates[3]!, scale: "non-negative", thermal: { form: "arrhenius", appliesTo: "rate", activationEnergy: 0.65, referenceTemperature: 15, valueAtReference: 12.5 } };
+    expect(LifeCycleSchema.parse(doc)).toEqual(doc);
+  });
+
+  it("checks the version-2 fields across the document, naming the rate or scenario", () => {
+    const doc = validDocument({
+      correlations: [
+        { a: "vr_sj", b: "vr_nope", r: 0.2 },
+        { a: "vr_sa", b: "vr_sa", r: 0.1 },
+      ],
+      scenarios: [{ id: "sc_1", name: "Weed", changes: [{ id: "ch_1", target: { kind: "rate", rateId: "vr_gone" }, op: "add", value: 0.1 }] }],
+      climate: { range: { min: 30, max: 10 } },
+    });
+    doc.rates[0] = { ...doc.rates[0]!, counts: { k: 12, n: 10 } };
+    doc.rates[1] = { ...doc.rates[1]!, thermal: { form: "gaussian-quadratic", appliesTo: "rate", optimum: 20, width: 3, criticalMaximum: 18, valueAtOptimum: 0.9 } };
+    expect(issuesAt(doc, "rates.0.counts.k")[0]!.message).toBe("k (individuals that did it) cannot exceed n (individuals at risk).");
+    expect(issuesAt(doc, "correlations.0.b")[0]!.message).toBe('No vital rate has the id "vr_nope".');
+    expect(issuesAt(doc, "correlations.1.b")[0]!.message).toContain('both ends are "s_a"');
+    expect(issuesAt(doc, "scenarios.0.changes.0.target.rateId")[0]!.message).toContain('Scenario "Weed" changes a vital rate that does not exist');
+    expect(issuesAt(doc, "rates.1.thermal.criticalMaximum")[0]!.message).toContain('"s_a"');
+    expect(issuesAt(doc, "climate.range.max")).toHaveLength(1);
+  });
+
+  it("infers a rate's scale from its value when none is given", () => {
+    expect(rateScale({ value: 0.4 })).toBe("probability");
+    expect(rateScale({ value: 12.5 })).toBe("non-negative");
+    expect(rateScale({ value: -1.2 })).toBe("unbounded");
+    expect(rateScale({ value: 0.4, scale: "non-negative" })).toBe("non-negative");
+  });
+
   it("allows negative vital-rate values (coefficients on a logit scale)", () => {
     expect(LifeCycleSchema.parse(validDocument()).rates[4]!.value).toBe(-1.2);
   });
 
   it.each([
-    ["stagewright", { stagewright: 2 }],
+    ["stagewright", { stagewright: LIFE_CYCLE_SCHEMA_VERSION + 1 }],
     ["census", { census: "mid-breeding" }],
     ["timeStepUnit", { timeStepUnit: " " }],
     ["name", { name: "" }],

@@ -102,6 +102,34 @@ describe("upgradeLifeCycle", () => {
     expect(() => upgradeLifeCycle(currentDocument({ stages: "none" }))).toThrow(ZodError);
   });
 
+  it("reads a stored version-1 document as version 2 with its content unchanged", () => {
+    // A document as version 1 wrote it (before scenarios, thermal responses and rate uncertainty beyond SE/CI).
+    const version1 = {
+      stagewright: 1,
+      name: "Pond",
+      census: "post-breeding",
+      timeStepUnit: "year",
+      stages: [
+        { id: "st_j", name: "Juvenile", position: { x: 0, y: 0 } },
+        { id: "st_a", name: "Adult", position: { x: 200, y: 0 } },
+      ],
+      rates: [
+        { id: "vr_sj", name: "s_j", value: 0.3, se: 0.04, source: "invented" },
+        { id: "vr_sa", name: "s_a", value: 0.8, ci: { lower: 0.7, upper: 0.88, level: 0.95 } },
+        { id: "vr_m", name: "m", value: 2.5 },
+      ],
+      transitions: [
+        { id: "tr_g", from: "st_j", to: "st_a", kind: "growth", rate: "s_j" },
+        { id: "tr_s", from: "st_a", to: "st_a", kind: "stasis", rate: "s_a" },
+        { id: "tr_f", from: "st_a", to: "st_j", kind: "reproduction", rate: "s_a * m" },
+      ],
+    };
+    const frozen = structuredClone(version1);
+    const doc = upgradeLifeCycle(version1);
+    expect(doc).toEqual({ ...frozen, stagewright: 2 });
+    expect(version1).toEqual(frozen);
+  });
+
   it("has a registered step for every older version and none beyond", () => {
     for (const key of Object.keys(UPGRADE_STEPS)) expect(Number(key)).toBeLessThan(LIFE_CYCLE_SCHEMA_VERSION);
     for (let v = 1; v < LIFE_CYCLE_SCHEMA_VERSION; v++) expect(UPGRADE_STEPS[v], `step from version ${v}`).toBeTypeOf("function");

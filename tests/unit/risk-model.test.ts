@@ -28,7 +28,7 @@ const stage = (id: string, name = id) => ({ id, name, position: { x: 0, y: 0 } }
 function lifeCycle(overrides: Partial<LifeCycleInput> = {}, values: Record<string, number> = {}): LifeCycle {
   const v = { s_j: 0.4, s_s: 0.6, g: 0.5, s_a: 0.8, f: 1.2, ...values };
   return LifeCycleSchema.parse({
-    stagewright: 1,
+    stagewright: 2,
     name: "Test",
     census: "pre-breeding",
     timeStepUnit: "year",
