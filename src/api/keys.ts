@@ -63,6 +63,3 @@ export const queryKeys = {
 
   devMail: ["dev", "mail"] as const,
 };
-
-/** Query keys whose data belongs to the signed-in person; dropped when the session starts or ends. */
-export const personalKeyPrefixes = [queryKeys.account.all, queryKeys.studies.all, queryKeys.lifeCycles.all, queryKeys.snapshots.all, queryKeys.runs.all, queryKeys.analyze.all] as const;

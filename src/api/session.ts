@@ -9,7 +9,7 @@ import type {
   User,
 } from "../../shared/schemas";
 import { api } from "./client";
-import { personalKeyPrefixes, queryKeys } from "./keys";
+import { queryKeys } from "./keys";
 
 /** The session as the client holds it; `endedBy` tells a deliberate sign-out from an expired session. */
 export type SessionState = SessionInfo & { endedBy?: "sign-out" | "expired" };
@@ -32,8 +32,9 @@ export function useCurrentUser(): User | null {
   return useSession().user;
 }
 
+/** Forgets every cached answer but the session itself, so no resource added later can be missed. */
 function dropPersonalData(queryClient: QueryClient) {
-  for (const queryKey of personalKeyPrefixes) queryClient.removeQueries({ queryKey });
+  queryClient.removeQueries({ predicate: (query) => query.queryKey[0] !== queryKeys.session[0] });
 }
 
 /** A new person is signed in: forget whatever the previous one could see. */
