@@ -16,6 +16,7 @@ import { accountRoutes } from "./routes/account";
 import { authRoutes } from "./routes/auth";
 import { devMailRoutes } from "./routes/dev-mail";
 import { lifeCycleRoutes } from "./routes/life-cycles";
+import { reviewRoutes } from "./routes/review";
 import { runRoutes } from "./routes/runs";
 import type { RunKinds } from "./runs/kinds";
 import type { JobSender } from "./runs/queue";
@@ -47,6 +48,7 @@ export function createApiRouter(deps: AppDeps): Router {
   studyRoutes(r, deps);
   lifeCycleRoutes(r, deps);
   runRoutes(r, deps);
+  reviewRoutes(r, deps);
   if (deps.config.mailOutbox) devMailRoutes(r, deps);
   return r;
 }

@@ -12,6 +12,7 @@ import { RUN_KINDS } from "./runs/registry";
 import { createRun } from "./runs/service";
 import { recordEvent } from "./services/audit";
 import { takeSnapshot } from "./services/snapshots";
+import { seedReview } from "./seed/review";
 
 /** Invented people, species and places: the demo must never pass for real data. */
 export const DEMO_PASSWORD = "stagewright-demo";
@@ -109,6 +110,7 @@ export async function seedDemo(db: Db): Promise<{ studyId: string; created: bool
       await recordEvent(tx, { studyId, actorId: ids[DEMO_USERS[1]!.email]!, action: "life_cycle.created", summary: `created the life cycle “${document.name}”`, details: { lifeCycleId: lc!.id } });
       await takeSnapshot(tx, lc!.id, ids[DEMO_USERS[1]!.email]!, "Rates from the mark–recapture seasons 2012–2026");
     }
+    await seedReview(tx, studyId, { editor: { id: ids[DEMO_USERS[1]!.email]!, name: DEMO_USERS[1]!.name, role: "editor" }, reviewer: { id: ids[DEMO_USERS[2]!.email]!, name: DEMO_USERS[2]!.name, role: "reviewer" } });
     return { studyId, created: true };
   });
 }

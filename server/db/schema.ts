@@ -232,3 +232,100 @@ export const runChunks = pgTable(
   },
   (t) => [primaryKey({ columns: [t.runId, t.chunkIndex] })],
 );
+
+/**
+ * Review comments. A thread is its first comment (threadId null, with the
+ * anchor and the resolved state); replies point at it with threadId.
+ */
+export const comments = pgTable(
+  "comments",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "cascade" }),
+    lifeCycleId: uuid("life_cycle_id")
+      .notNull()
+      .references(() => lifeCycles.id, { onDelete: "cascade" }),
+    threadId: uuid("thread_id"),
+    /** shared/schemas/review CommentAnchorSchema; on a thread's first comment only. */
+    anchor: jsonb("anchor"),
+    /** How the anchor read when the thread started ("arrow Eft → Subadult"), kept if it is later removed. */
+    anchorLabel: text("anchor_label"),
+    body: text("body").notNull(),
+    /** User ids mentioned in the body (members when written). */
+    mentions: jsonb("mentions").notNull().default(sql`'[]'::jsonb`),
+    authorId: uuid("author_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+    editedAt: timestamp("edited_at", { withTimezone: true }),
+    deletedAt: timestamp("deleted_at", { withTimezone: true }),
+    resolvedAt: timestamp("resolved_at", { withTimezone: true }),
+    resolvedBy: uuid("resolved_by").references(() => users.id, { onDelete: "set null" }),
+  },
+  (t) => [index("comments_life_cycle_idx").on(t.lifeCycleId, t.createdAt), index("comments_thread_idx").on(t.threadId)],
+);
+
+export const REVIEW_STATES = ["requested", "approved", "changes_requested"] as const;
+export const reviewStateEnum = pgEnum("review_state", REVIEW_STATES);
+
+/** One reviewer's review of one snapshot: asked for (requestedBy) and/or decided. */
+export const reviews = pgTable(
+  "reviews",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "cascade" }),
+    lifeCycleId: uuid("life_cycle_id")
+      .notNull()
+      .references(() => lifeCycles.id, { onDelete: "cascade" }),
+    snapshotId: uuid("snapshot_id")
+      .notNull()
+      .references(() => snapshots.id, { onDelete: "cascade" }),
+    reviewerId: uuid("reviewer_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    requestedBy: uuid("requested_by").references(() => users.id, { onDelete: "set null" }),
+    message: text("message").notNull().default(""),
+    state: reviewStateEnum("state").notNull().default("requested"),
+    summary: text("summary").notNull().default(""),
+    createdAt: createdAt(),
+    decidedAt: timestamp("decided_at", { withTimezone: true }),
+  },
+  (t) => [uniqueIndex("reviews_snapshot_reviewer_unique").on(t.snapshotId, t.reviewerId), index("reviews_life_cycle_idx").on(t.lifeCycleId)],
+);
+
+export const NOTIFICATION_MODES = ["immediate", "digest", "off"] as const;
+export const notificationModeEnum = pgEnum("notification_mode", NOTIFICATION_MODES);
+
+/** How a person wants their e-mail (no row: immediate). */
+export const notificationPreferences = pgTable("notification_preferences", {
+  userId: uuid("user_id")
+    .primaryKey()
+    .references(() => users.id, { onDelete: "cascade" }),
+  mode: notificationModeEnum("mode").notNull(),
+  updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+});
+
+/**
+ * Notification outbox: written in the transaction of the change that causes
+ * it, sent after the commit (immediate) or by the daily digest job.
+ */
+export const notifications = pgTable(
+  "notifications",
+  {
+    id: bigserial("id", { mode: "number" }).primaryKey(),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    kind: varchar("kind", { length: 40 }).notNull(),
+    /** The recipient's mode when it was written. */
+    mode: notificationModeEnum("mode").notNull(),
+    subject: text("subject").notNull(),
+    text: text("text").notNull(),
+    link: text("link").notNull(),
+    createdAt: createdAt(),
+    sentAt: timestamp("sent_at", { withTimezone: true }),
+  },
+  (t) => [index("notifications_unsent_idx").on(t.userId, t.sentAt)],
+);

@@ -1,5 +1,6 @@
 import type { Router } from "express";
 import { InvitationCreateSchema, MemberUpdateSchema, StudyCreateSchema, StudyUpdateSchema } from "../../shared/schemas/studies";
+import { ActivityQuerySchema } from "../../shared/schemas/review";
 import type { AppDeps } from "../app";
 import { currentUser, signedIn, studyAccess, studyRole, uuidParam } from "../auth/authorize";
 import { acceptInvitation, createInvitation, listInvitations, previewInvitation, revokeInvitation } from "../services/invitations";
@@ -8,7 +9,7 @@ import { changeMemberRole, createStudy, getStudy, listActivity, listMembers, lis
 export function studyRoutes(r: Router, deps: AppDeps): void {
   const { db } = deps;
   // Read at request time: the public address can be set after start-up (tests listen on port 0).
-  const mailDeps = () => ({ mailer: deps.mailer, publicUrl: deps.config.publicUrl });
+  const mailDeps = () => ({ mailer: deps.mailer, publicUrl: deps.config.publicUrl, secret: deps.config.sessionSecret });
 
   r.get("/studies", signedIn, async (req, res) => {
     res.json(await listStudies(db, currentUser(req).id));
@@ -56,8 +57,8 @@ export function studyRoutes(r: Router, deps: AppDeps): void {
     res.status(204).end();
   });
 
-  r.get("/studies/:studyId/activity", studyRole(db, "viewer"), async (_req, res) => {
-    res.json(await listActivity(db, studyAccess(res).studyId));
+  r.get("/studies/:studyId/activity", studyRole(db, "viewer"), async (req, res) => {
+    res.json(await listActivity(db, studyAccess(res).studyId, ActivityQuerySchema.parse(req.query)));
   });
 
   // The link in the e-mail is the credential: anyone holding it may see what it offers.

@@ -17,13 +17,14 @@ export const CHUNK_EXPIRE_SECONDS = 20;
 export const CHUNK_RETRY_LIMIT = 3;
 export const MAINTENANCE_SECONDS = 5;
 
-export function createBoss(databaseUrl: string, options: { supervise: boolean }): PgBoss {
+/** `schedule`: this process runs pg-boss's cron clock (workers do; the web server only sends). */
+export function createBoss(databaseUrl: string, options: { supervise: boolean; schedule?: boolean }): PgBoss {
   const boss = new PgBoss({
     connectionString: databaseUrl,
     max: 4,
     supervise: options.supervise,
     maintenanceIntervalSeconds: MAINTENANCE_SECONDS,
-    schedule: false,
+    schedule: options.schedule ?? false,
   });
   boss.on("error", (err) => console.warn(`Job queue: ${err.message}`));
   return boss;

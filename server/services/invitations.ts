@@ -7,6 +7,7 @@ import { HttpError, notFound } from "../http/errors";
 import type { Mailer } from "../mail/mailer";
 import { sendQuietly } from "../mail/mailer";
 import { recordEvent } from "./audit";
+import { notificationMode, unsubscribeUrl } from "./notifications";
 
 export const INVITATION_DAYS = 14;
 
@@ -33,13 +34,13 @@ export async function listInvitations(db: Db, studyId: string): Promise<Invitati
 
 export async function createInvitation(
   db: Db,
-  deps: { mailer: Mailer; publicUrl: string },
+  deps: { mailer: Mailer; publicUrl: string; secret?: string },
   studyId: string,
   inviter: { id: string; name: string },
   input: InvitationCreate,
 ): Promise<Invitation> {
   const token = newSecret();
-  const { invitation, studyName } = await db.transaction(async (tx) => {
+  const { invitation, studyName, recipient } = await db.transaction(async (tx) => {
     const [study] = await tx.select().from(studies).where(eq(studies.id, studyId));
     if (!study) throw notFound("No such Study.");
     const [already] = await tx
@@ -55,8 +56,12 @@ export async function createInvitation(
       .values({ studyId, email: input.email, role: input.role, tokenHash: sha256(token), invitedBy: inviter.id, expiresAt: new Date(Date.now() + INVITATION_DAYS * 86_400_000) })
       .returning();
     await recordEvent(tx, { studyId, actorId: inviter.id, action: "invitation.created", summary: `invited ${input.email} as ${input.role}`, details: { email: input.email, role: input.role } });
-    return { invitation: row!, studyName: study.name };
+    // Someone with an account gets it as their settings say (the link is a credential, so never in a digest).
+    const [user] = await tx.select({ id: users.id }).from(users).where(eq(users.email, input.email));
+    const mode = user ? await notificationMode(tx, user.id) : "immediate";
+    return { invitation: row!, studyName: study.name, recipient: user && mode !== "off" ? user.id : user ? "off" : null };
   });
+  if (recipient === "off") return toInvitation({ ...invitation, invitedBy: inviter.name });
   await sendQuietly(deps.mailer, {
     to: input.email,
     subject: `${inviter.name} invited you to the Study “${studyName}” on Stagewright`,
@@ -68,6 +73,7 @@ export async function createInvitation(
       "",
       "If you do not have an account yet, the link lets you create one with this e-mail address.",
       "If you did not expect this message, you can ignore it.",
+      ...(recipient && deps.secret ? ["", "-- ", `Change how Stagewright e-mails you in Settings: ${deps.publicUrl}/settings`, `Stop all Stagewright e-mails (no sign-in needed): ${unsubscribeUrl({ publicUrl: deps.publicUrl, secret: deps.secret }, recipient)}`] : []),
     ].join("\n"),
   });
   return toInvitation({ ...invitation, invitedBy: inviter.name });

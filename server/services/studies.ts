@@ -1,4 +1,5 @@
-import { and, count, desc, eq, sql } from "drizzle-orm";
+import { and, count, desc, eq, gte, like, lt, sql } from "drizzle-orm";
+import type { ActivityQuery } from "../../shared/schemas/review";
 import type { AuditEvent, Member, MemberUpdate, Role, Study, StudyCreate, StudyUpdate } from "../../shared/schemas/studies";
 import { StudyCreateSchema } from "../../shared/schemas/studies";
 import type { Db, DbOrTx } from "../db/client";
@@ -143,14 +144,35 @@ export async function removeMember(db: Db, studyId: string, actorId: string, act
   });
 }
 
-export async function listActivity(db: Db, studyId: string, limit = 200): Promise<AuditEvent[]> {
+/**
+ * A Study's activity, newest first, filtered by kind (action prefix), person,
+ * life cycle and dates; page with `before` (the last id seen).
+ */
+export async function listActivity(db: Db, studyId: string, query: Partial<ActivityQuery> = {}): Promise<AuditEvent[]> {
+  const where = [eq(auditEvents.studyId, studyId)];
+  if (query.kind) where.push(like(auditEvents.action, `${query.kind}.%`));
+  if (query.actorId) where.push(eq(auditEvents.actorId, query.actorId));
+  if (query.lifeCycleId) where.push(sql`${auditEvents.details}->>'lifeCycleId' = ${query.lifeCycleId}`);
+  if (query.from) where.push(gte(auditEvents.createdAt, new Date(`${query.from}T00:00:00Z`)));
+  if (query.to) where.push(lt(auditEvents.createdAt, new Date(new Date(`${query.to}T00:00:00Z`).getTime() + 86_400_000)));
+  if (query.before) where.push(lt(auditEvents.id, query.before));
   const rows = await db
-    .select({ id: auditEvents.id, action: auditEvents.action, summary: auditEvents.summary, createdAt: auditEvents.createdAt, actorName: users.name })
+    .select({ id: auditEvents.id, action: auditEvents.action, summary: auditEvents.summary, createdAt: auditEvents.createdAt, actorId: auditEvents.actorId, actorName: users.name, details: auditEvents.details })
     .from(auditEvents)
     .leftJoin(users, eq(users.id, auditEvents.actorId))
-    .where(eq(auditEvents.studyId, studyId))
-    .orderBy(desc(auditEvents.createdAt), desc(auditEvents.id))
-    .limit(limit);
-  return rows.map((r) => ({ id: String(r.id), action: r.action, summary: r.summary, actorName: r.actorName ?? null, createdAt: r.createdAt.toISOString() }));
+    .where(and(...where))
+    .orderBy(desc(auditEvents.id))
+    .limit(query.limit ?? 200);
+  return rows.map((r) => {
+    const lifeCycleId = (r.details as { lifeCycleId?: unknown } | null)?.lifeCycleId;
+    return {
+      id: String(r.id),
+      action: r.action,
+      summary: r.summary,
+      actorId: r.actorId,
+      actorName: r.actorName ?? null,
+      lifeCycleId: typeof lifeCycleId === "string" ? lifeCycleId : null,
+      createdAt: r.createdAt.toISOString(),
+    };
+  });
 }
-

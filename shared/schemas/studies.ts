@@ -87,8 +87,11 @@ export type InvitationPreview = z.infer<typeof InvitationPreviewSchema>;
 export const AuditEventSchema = z.object({
   id: z.string(),
   action: z.string(),
+  actorId: z.string().nullable(),
   actorName: z.string().nullable(),
   summary: z.string(),
+  /** The life cycle the event concerns, if any. */
+  lifeCycleId: z.string().nullable(),
   createdAt: z.string(),
 });
 export type AuditEvent = z.infer<typeof AuditEventSchema>;

@@ -1,9 +1,11 @@
 import { randomBytes } from "node:crypto";
+import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Role } from "../../shared/schemas/studies";
 import { createApiRouter } from "../../server/app";
 import { sha256 } from "../../server/auth/secrets";
-import { invitations, lifeCycles, memberships, runs, snapshots } from "../../server/db/schema";
+import { comments, invitations, lifeCycles, memberships, runs, snapshots } from "../../server/db/schema";
+import { unsubscribeToken } from "../../server/services/notifications";
 import { createApiToken } from "../../server/services/api-tokens";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 import { browserAgent, signUpAgent, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
@@ -67,6 +69,20 @@ async function freshRun(ctx: Ctx): Promise<string> {
   const lifeCycleId = await freshLifeCycle(ctx);
   const [row] = await ctx.server.db.insert(runs).values({ studyId: ctx.studyId, lifeCycleId, kind: "risk", input: {}, settings: {}, chunksTotal: 1 }).returning();
   return row!.id;
+}
+/** A thread written by the persona itself (so editing and deleting one's own comment is what is tested). */
+async function freshComment(ctx: Ctx): Promise<string> {
+  const lifeCycleId = await freshLifeCycle(ctx);
+  const [row] = await ctx.server.db
+    .insert(comments)
+    .values({ studyId: ctx.studyId, lifeCycleId, anchor: { kind: "lifeCycle" }, anchorLabel: "the life cycle as a whole", body: "c", authorId: ctx.userId })
+    .returning();
+  return row!.id;
+}
+async function resolvedComment(ctx: Ctx): Promise<string> {
+  const id = await freshComment(ctx);
+  await ctx.server.db.update(comments).set({ resolvedAt: new Date() }).where(eq(comments.id, id));
+  return id;
 }
 const riskSettings = (lifeCycleId: string) => ({ environment: { kind: "matrices", lifeCycleIds: [lifeCycleId], weights: [1] }, initial: [10, 5, 2], horizon: 5, replicates: 10, threshold: { value: 1 } });
 
@@ -166,6 +182,38 @@ const MATRIX: Record<string, Entry> = {
   },
   "GET /runs/:runId": { access: "viewer", request: async (c) => ({ path: `/runs/${await freshRun(c)}` }) },
   "POST /runs/:runId/cancel": { access: "editor", request: async (c) => ({ path: `/runs/${await freshRun(c)}/cancel` }) },
+  "GET /life-cycles/:lifeCycleId/comments": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/comments` }) },
+  "POST /life-cycles/:lifeCycleId/comments": {
+    access: "reviewer",
+    request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/comments`, body: { anchor: { kind: "stage", id: "st_j" }, body: "Why 0.4?" } }),
+  },
+  "POST /comments/:commentId/replies": { access: "reviewer", request: async (c) => ({ path: `/comments/${await freshComment(c)}/replies`, body: { body: "A reply" } }) },
+  "PATCH /comments/:commentId": { access: "reviewer", request: async (c) => ({ path: `/comments/${await freshComment(c)}`, body: { body: "Edited" } }) },
+  "DELETE /comments/:commentId": { access: "reviewer", request: async (c) => ({ path: `/comments/${await freshComment(c)}` }) },
+  "POST /comments/:commentId/resolve": { access: "reviewer", request: async (c) => ({ path: `/comments/${await freshComment(c)}/resolve` }) },
+  "POST /comments/:commentId/reopen": { access: "reviewer", request: async (c) => ({ path: `/comments/${await resolvedComment(c)}/reopen` }) },
+  "GET /life-cycles/:lifeCycleId/reviews": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/reviews` }) },
+  "POST /life-cycles/:lifeCycleId/reviews": {
+    access: "editor",
+    request: async (c) => {
+      const id = await freshLifeCycle(c);
+      const reviewer = await freshMember(c, "reviewer");
+      return { path: `/life-cycles/${id}/reviews`, body: { snapshotId: await freshSnapshot(c, id), reviewerIds: [reviewer], message: "Please look" } };
+    },
+  },
+  "POST /life-cycles/:lifeCycleId/reviews/decision": {
+    access: "reviewer",
+    request: async (c) => {
+      const id = await freshLifeCycle(c);
+      return { path: `/life-cycles/${id}/reviews/decision`, body: { snapshotId: await freshSnapshot(c, id), decision: "approved", summary: "Fine." } };
+    },
+  },
+  "GET /account/notifications": { access: "user", request: async () => ({ path: "/account/notifications" }) },
+  "PUT /account/notifications": { access: "user", request: async () => ({ path: "/account/notifications", body: { mode: "immediate" } }) },
+  "POST /notifications/unsubscribe": {
+    access: "public",
+    request: async (c) => ({ path: "/notifications/unsubscribe", body: { token: unsubscribeToken(c.server.config.sessionSecret, (await signUpAgent(c.server)).user.id) } }),
+  },
   "POST /analyze": { access: "user", request: async () => ({ path: "/analyze", body: { matrix: [[0.5, 1.2], [0.4, 0.8]] } }) },
 };
 

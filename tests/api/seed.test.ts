@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, expect, it } from "vitest";
 import { eq } from "drizzle-orm";
-import { lifeCycles, memberships, runs, studies, users } from "../../server/db/schema";
+import { comments, lifeCycles, memberships, notifications, reviews, runs, studies, users } from "../../server/db/schema";
 import { createJobSender } from "../../server/runs/queue";
 import { DEMO_PASSWORD, DEMO_USERS, seedDemo, seedDemoRun } from "../../server/seed";
 import { startWorker } from "../helpers/worker";
@@ -23,6 +23,12 @@ it("seeds the demo once: a second run neither duplicates nor fails", async () =>
   expect(await server.db.select().from(studies)).toHaveLength(1);
   expect(await server.db.select().from(memberships)).toHaveLength(3);
   expect(await server.db.select().from(lifeCycles)).toHaveLength(2);
+  // The demo review trail: the reviewer's threads (with replies) and one decision per life cycle, and no e-mail queued.
+  const demoComments = await server.db.select().from(comments);
+  expect(demoComments.filter((c) => c.threadId === null)).toHaveLength(4);
+  expect(demoComments.filter((c) => c.threadId !== null)).toHaveLength(2);
+  expect((await server.db.select({ state: reviews.state }).from(reviews)).map((r) => r.state).sort()).toEqual(["approved", "changes_requested"]);
+  expect(await server.db.select().from(notifications)).toEqual([]);
 });
 
 it("lets each demo account sign in with its role, and the demo life cycles analyse", async () => {
