@@ -10,6 +10,8 @@ export const queryKeys = {
   account: {
     all: ["account"] as const,
     tokens: () => [...queryKeys.account.all, "tokens"] as const,
+    /** How the person wants their e-mail (immediate, digest, off). */
+    notifications: () => [...queryKeys.account.all, "notifications"] as const,
   },
 
   studies: {
@@ -19,6 +21,8 @@ export const queryKeys = {
     members: (studyId: string) => [...queryKeys.studies.detail(studyId), "members"] as const,
     invitations: (studyId: string) => [...queryKeys.studies.detail(studyId), "invitations"] as const,
     activity: (studyId: string) => [...queryKeys.studies.detail(studyId), "activity"] as const,
+    /** One filtered view of the activity log (filters as sent, paging included). */
+    activityLog: (studyId: string, filters: Record<string, string>) => [...queryKeys.studies.activity(studyId), "log", filters] as const,
     lifeCycles: (studyId: string) => [...queryKeys.studies.detail(studyId), "life-cycles"] as const,
     deletedLifeCycles: (studyId: string) => [...queryKeys.studies.detail(studyId), "deleted-life-cycles"] as const,
   },
@@ -34,6 +38,10 @@ export const queryKeys = {
     snapshots: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "snapshots"] as const,
     /** The life cycle's Runs, newest first (GET /life-cycles/:id/runs). */
     runs: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "runs"] as const,
+    /** Review comment threads with their replies (GET /life-cycles/:id/comments). */
+    comments: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "comments"] as const,
+    /** Review requests, decisions and the review status (GET /life-cycles/:id/reviews). */
+    reviews: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "reviews"] as const,
   },
 
   /** Runs by id: status and progress while they compute, then their result. */

@@ -14,6 +14,11 @@ export type Selection =
   /** A matrix cell: row = stage at t+1 (`to`), column = stage at t (`from`). */
   | { kind: "cell"; to: string; from: string };
 
+/** A stable text key for a selection (stage:id, transition:id, rate:id, cell:to:from). */
+export function selectionKey(selection: Selection): string {
+  return selection.kind === "cell" ? `cell:${selection.to}:${selection.from}` : `${selection.kind}:${selection.id}`;
+}
+
 export interface AnalysisState {
   /** The latest result that could be computed (possibly for an older document: see `stale`). */
   data: LifeCycleAnalysis | undefined;
@@ -33,4 +38,6 @@ export interface EditorPanelProps {
   analysis: AnalysisState;
   selection: Selection | null;
   onSelect: (selection: Selection | null) => void;
+  /** Open review threads per anchor (keys from `selectionKey`), shown as markers. */
+  commentCounts: ReadonlyMap<string, number>;
 }

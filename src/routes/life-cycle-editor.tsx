@@ -6,7 +6,7 @@
  */
 import { Tab, TabGroup, TabList, TabPanel, TabPanels } from "@headlessui/react";
 import { useSuspenseQuery } from "@tanstack/react-query";
-import { type ReactNode, Suspense, lazy, useState } from "react";
+import { type ReactNode, Suspense, lazy, useMemo, useState } from "react";
 import { Link, useNavigate, useParams, useSearchParams } from "react-router";
 import { roleAtLeast } from "../../shared/schemas";
 import { type LifeCycleRecord, lifeCycleQueryOptions } from "../api/life-cycles";
@@ -26,7 +26,12 @@ import {
 } from "../features/editor-state";
 import type { ExportPanelProps } from "../features/export";
 import type { HistoryPanelProps } from "../features/history";
+import { openThreadCounts } from "../features/review/anchors";
+import { LifeCycleReviewStatus } from "../features/review/review-status";
+import type { ReviewPanelProps } from "../features/review";
 import type { RiskPanelProps } from "../features/risk";
+import { useComments } from "../api/comments";
+import type { CommentAnchor } from "../../shared/schemas/review";
 import type { EditorPanelProps, Selection } from "../lib/editor-types";
 import { ROLE_LABELS } from "../lib/roles";
 import { paths } from "./paths";
@@ -39,8 +44,9 @@ const ResultsPanel = lazy(() => import("../features/results").then((m) => ({ def
 const RiskPanel = lazy(() => import("../features/risk").then((m) => ({ default: m.RiskPanel })));
 const HistoryPanel = lazy(() => import("../features/history").then((m) => ({ default: m.HistoryPanel })));
 const ExportPanel = lazy(() => import("../features/export").then((m) => ({ default: m.ExportPanel })));
+const ReviewPanel = lazy(() => import("../features/review").then((m) => ({ default: m.ReviewPanel })));
 
-type TabId = "diagram" | "rates" | "matrix" | "results" | "risk" | "history" | "export";
+type TabId = "diagram" | "rates" | "matrix" | "results" | "risk" | "review" | "history" | "export";
 
 interface TabContext {
   /** The panel props for one tab (each tab gets its own `onSelect`). */
@@ -48,6 +54,7 @@ interface TabContext {
   risk: RiskPanelProps;
   history: HistoryPanelProps;
   exports: ExportPanelProps;
+  review: ReviewPanelProps;
 }
 
 const TABS: readonly { id: TabId; label: string; render: (c: TabContext) => ReactNode }[] = [
@@ -56,7 +63,9 @@ const TABS: readonly { id: TabId; label: string; render: (c: TabContext) => Reac
   { id: "matrix", label: "Matrix", render: (c) => <MatrixPanel {...c.panel("matrix")} /> },
   { id: "results", label: "Results", render: (c) => <ResultsPanel {...c.panel("results")} /> },
   { id: "risk", label: "Risk", render: (c) => <RiskPanel {...c.risk} /> },
-  { id: "history", label: "History", render: (c) => <HistoryPanel {...c.history} /> },
+  { id: "review", label: "Review", render: (c) => <ReviewPanel {...c.review} /> },
+  // Keyed by the compared snapshot, so "See the changes" opens a fresh comparison.
+  { id: "history", label: "History", render: (c) => <HistoryPanel key={c.history.compareWith ?? ""} {...c.history} /> },
   { id: "export", label: "Export", render: (c) => <ExportPanel {...c.exports} /> },
 ];
 
@@ -85,17 +94,40 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
     TABS.findIndex((t) => t.id === search.get("tab")),
   );
   const { document } = editor;
+  const comments = useComments(initial.id);
+  const commentCounts = useMemo(() => openThreadCounts(comments.data ?? []), [comments.data]);
 
   const showTab = (index: number) =>
     setSearch(
-      (params) => {
-        const next = new URLSearchParams(params);
-        if (index === 0) next.delete("tab");
-        else next.set("tab", TABS[index]?.id ?? "diagram");
+      () => {
+        // A thread, snapshot or comparison named in the address belongs to the tab it was opened on.
+        const next = new URLSearchParams();
+        if (index !== 0) next.set("tab", TABS[index]?.id ?? "diagram");
         return next;
       },
       { replace: true },
     );
+
+  const tabIndex = (id: TabId) => TABS.findIndex((t) => t.id === id);
+  /** Opens a tab with extra search parameters (thread, snapshot, compare) in the address. */
+  const openTab = (id: TabId, extra: Record<string, string> = {}) =>
+    setSearch(
+      () => {
+        const next = new URLSearchParams();
+        if (id !== "diagram") next.set("tab", id);
+        for (const [k, v] of Object.entries(extra)) next.set(k, v);
+        return next;
+      },
+      { replace: true },
+    );
+  const showChanges = (snapshotId: string) => openTab("history", { compare: snapshotId });
+  // A comment's "Show" selects its anchor on the tab that shows it.
+  const showAnchor = (anchor: CommentAnchor) => {
+    if (anchor.kind === "snapshot") return showChanges(anchor.snapshotId);
+    if (anchor.kind === "lifeCycle") return;
+    setSelection(anchor.kind === "cell" ? { kind: "cell", to: anchor.to, from: anchor.from } : { kind: anchor.kind, id: anchor.id });
+    showTab(tabIndex(anchor.kind === "cell" ? "matrix" : anchor.kind === "rate" ? "rates" : "diagram"));
+  };
 
   const context: TabContext = {
     panel: (tab) => ({
@@ -109,10 +141,22 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
         setSelection(next);
         if (tab !== "diagram" && (next?.kind === "stage" || next?.kind === "transition")) showTab(0);
       },
+      commentCounts,
     }),
     risk: { lifeCycleId: initial.id, studyId: study.id, document, analysis, readOnly, saveStatus: editor.save.status, version: editor.version },
-    history: { lifeCycleId: initial.id, version: editor.version, readOnly, onRestored: editor.reset },
+    history: { lifeCycleId: initial.id, version: editor.version, readOnly, onRestored: editor.reset, compareWith: search.get("compare") },
     exports: { document, analysis },
+    review: {
+      lifeCycleId: initial.id,
+      studyId: study.id,
+      role: study.role,
+      document,
+      selection,
+      onShowAnchor: showAnchor,
+      focusThreadId: search.get("thread"),
+      focusSnapshotId: search.get("snapshot"),
+      onShowChanges: showChanges,
+    },
   };
 
   return (
@@ -140,6 +184,7 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
           <div className="flex min-w-0 flex-wrap items-center gap-3">
             <NameField name={document.name} readOnly={readOnly} onRename={(name) => editor.change({ ...document, name }, "Rename life cycle")} />
             {readOnly && <Badge>Read only · {ROLE_LABELS[study.role]}</Badge>}
+            <LifeCycleReviewStatus lifeCycleId={initial.id} onShowChanges={showChanges} />
           </div>
           <div className="flex flex-wrap items-center gap-3">
             <LambdaReadout analysis={analysis} hasStages={document.stages.length > 0} timeStepUnit={document.timeStepUnit} />
@@ -185,6 +230,11 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
           {TABS.map((t) => (
             <Tab key={t.id} className={tabClasses}>
               {t.label}
+              {t.id === "review" && commentCounts.size > 0 && (
+                <span className="ml-1.5 rounded-full bg-indigo px-1.5 text-xs text-white" aria-label={`, ${[...commentCounts.values()].reduce((a, b) => a + b, 0)} open threads on the model`}>
+                  {[...commentCounts.values()].reduce((a, b) => a + b, 0)}
+                </span>
+              )}
             </Tab>
           ))}
         </TabList>

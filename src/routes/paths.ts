@@ -17,6 +17,8 @@ export const routePatterns = {
   lifeCycle: "/life-cycles/:lifeCycleId",
   settings: "/settings",
   mailOutbox: "/mail",
+  unsubscribe: "/unsubscribe",
+  studyActivity: "/studies/:studyId/activity",
 } as const;
 
 function withSearch(pathname: string, search: Record<string, string | null | undefined>): string {
@@ -41,6 +43,10 @@ export const paths = {
   lifeCycle: (lifeCycleId: string) => generatePath(routePatterns.lifeCycle, { lifeCycleId }),
   settings: () => routePatterns.settings,
   mailOutbox: () => routePatterns.mailOutbox,
+  studyActivity: (studyId: string) => generatePath(routePatterns.studyActivity, { studyId }),
+  /** A life cycle's editor on one tab, with a thread, snapshot or comparison in view. */
+  lifeCycleTab: (lifeCycleId: string, tab: string, extra: Record<string, string> = {}) =>
+    withSearch(generatePath(routePatterns.lifeCycle, { lifeCycleId }), { tab, ...extra }),
 };
 
 /**

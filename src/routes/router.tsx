@@ -77,6 +77,10 @@ export const routes: RouteObject[] = [
             lazy: () => import("./mail-outbox").then((m) => ({ Component: m.MailOutboxPage })),
           },
           {
+            path: routePatterns.unsubscribe,
+            lazy: () => import("./unsubscribe").then((m) => ({ Component: m.UnsubscribePage })),
+          },
+          {
             Component: RequireSession,
             children: [
               {
@@ -100,6 +104,16 @@ export const routes: RouteObject[] = [
                   return null;
                 },
                 lazy: () => import("./study").then((m) => ({ Component: m.StudyPage })),
+              },
+              {
+                path: routePatterns.studyActivity,
+                loader: async ({ params }) => {
+                  const { user } = await session();
+                  if (!user) return null;
+                  await queryClient.ensureQueryData(studyQueryOptions(params.studyId ?? ""));
+                  return null;
+                },
+                lazy: () => import("./study-activity").then((m) => ({ Component: m.StudyActivityPage })),
               },
               {
                 // The editor and its diagram and chart code load only when a life cycle is opened.

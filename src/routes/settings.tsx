@@ -1,6 +1,7 @@
 import { useCurrentUser } from "../api/session";
 import { PageHeader } from "../components/ui/layout";
 import { ApiTokensPanel } from "../features/account/api-tokens-panel";
+import { NotificationPreferencesForm } from "../features/account/notification-preferences";
 import { PasswordForm } from "../features/account/password-form";
 import { ProfileForm } from "../features/account/profile-form";
 
@@ -15,6 +16,7 @@ export function SettingsPage() {
       <div className="space-y-6">
         <ProfileForm user={user} />
         <PasswordForm />
+        <NotificationPreferencesForm />
         <ApiTokensPanel />
       </div>
     </>

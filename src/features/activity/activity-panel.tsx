@@ -3,7 +3,9 @@ import { useActivity } from "../../api/activity";
 import { buttonClasses } from "../../components/ui/button";
 import { QueryError } from "../../components/ui/query-error";
 import { Loading } from "../../components/ui/spinner";
+import { TextLink } from "../../components/ui/text-link";
 import { RelativeTime } from "../../components/ui/time";
+import { paths } from "../../routes/paths";
 
 function ActivityList({ studyId }: { studyId: string }) {
   const activity = useActivity(studyId);
@@ -48,9 +50,12 @@ export function ActivityPanel({ studyId }: { studyId: string }) {
               {open ? "Hide activity" : "Show activity"}
             </DisclosureButton>
           </div>
-          <DisclosurePanel className="mt-3">
+          <DisclosurePanel className="mt-3 space-y-3">
             <ActivityList studyId={studyId} />
           </DisclosurePanel>
+          <p className="mt-3 text-sm">
+            <TextLink to={paths.studyActivity(studyId)}>Open the full activity log with filters</TextLink>
+          </p>
         </>
       )}
     </Disclosure>

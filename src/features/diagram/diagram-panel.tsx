@@ -65,6 +65,7 @@ function sameEdge(a: TransitionEdge, b: TransitionEdge): boolean {
     p.shade === q.shade &&
     p.elasticityText === q.elasticityText &&
     p.problem === q.problem &&
+    p.comments === q.comments &&
     sameLane(p.lane, q.lane)
   );
 }
@@ -95,7 +96,7 @@ function arrowElasticities(document: LifeCycle, analysis: EditorPanelProps["anal
   return result;
 }
 
-function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSelect }: EditorPanelProps) {
+function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSelect, commentCounts }: EditorPanelProps) {
   const flow = useReactFlow<StageNode, TransitionEdge>();
   const [sizes, setSizes] = useState<ReadonlyMap<string, Size>>(new Map());
   const [dragging, setDragging] = useState<ReadonlyMap<string, { x: number; y: number }>>(new Map());
@@ -151,12 +152,12 @@ function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSe
         id: s.id,
         type: "stage",
         position: dragging.get(s.id) ?? s.position,
-        data: { name: s.name, color: s.color, readout: readouts.get(s.id) ?? null, readOnly },
+        data: { name: s.name, color: s.color, readout: readouts.get(s.id) ?? null, readOnly, comments: commentCounts.get(`stage:${s.id}`) ?? 0 },
         ...(sizes.has(s.id) ? { measured: sizes.get(s.id) } : {}),
         selected: selection?.kind === "stage" && selection.id === s.id,
         ariaLabel: `Stage ${s.name}`,
       })),
-    [document.stages, dragging, readouts, readOnly, sizes, selection],
+    [document.stages, dragging, readouts, readOnly, sizes, selection, commentCounts],
   );
 
   const rects = useMemo(() => {
@@ -193,6 +194,7 @@ function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSe
           shade: e !== undefined ? e / maxElasticity : null,
           elasticityText: e !== undefined ? formatElasticity(e) : null,
           problem: computeProblems.has(t.id),
+          comments: commentCounts.get(`transition:${t.id}`) ?? 0,
         },
       };
       const before = previousEdges.current.get(t.id);
@@ -202,7 +204,7 @@ function DiagramEditor({ document, onChange, readOnly, analysis, selection, onSe
     });
     previousEdges.current = reuse;
     return list;
-  }, [document, selection, lanes, arrowElasticity, maxElasticity, computeProblems]);
+  }, [document, selection, lanes, arrowElasticity, maxElasticity, computeProblems, commentCounts]);
 
   // ----------------------------------------------------------------- changes
   const onNodesChange = useCallback(

@@ -20,6 +20,8 @@ export type StageNodeData = {
   color: string | undefined;
   readout: StageReadout | null;
   readOnly: boolean;
+  /** Open review threads anchored to this stage. */
+  comments: number;
 };
 export type StageNode = Node<StageNodeData, "stage">;
 
@@ -34,5 +36,7 @@ export type TransitionEdgeData = {
   elasticityText: string | null;
   /** The arrow's rate cannot be computed (see the inspector). */
   problem: boolean;
+  /** Open review threads anchored to this arrow. */
+  comments: number;
 };
 export type TransitionEdge = Edge<TransitionEdgeData, "transition">;

@@ -26,6 +26,13 @@ function StageNodeView({ data, selected }: NodeProps<StageNode>) {
         style={{ pointerEvents: connecting ? "all" : "none" }}
       />
       <div className="sw-stage-name">{data.name}</div>
+      {data.comments > 0 && (
+        <span className="sw-comment-marker sw-comment-marker--stage" title={`${data.comments} open review ${data.comments === 1 ? "thread" : "threads"} (Review tab)`} data-comment-marker="">
+          <span aria-hidden="true">✎ </span>
+          {data.comments}
+          <span className="sr-only"> open review {data.comments === 1 ? "thread" : "threads"}</span>
+        </span>
+      )}
       {readout && (
         <dl className={`sw-stage-readout ${readout.stale ? "sw-stage-readout--stale" : ""}`}>
           <div>

@@ -55,6 +55,16 @@ function TransitionEdgeView({ id, source, target, data, selected, markerEnd }: E
         labelBgPadding={[5, 3]}
         labelBgBorderRadius={4}
       />
+      {data.comments > 0 && (
+        // A marker above the label: open review threads on this arrow.
+        <g transform={`translate(${label.x}, ${label.y - 22})`} data-comment-marker="" className="sw-comment-marker-edge">
+          <title>{`${data.comments} open review ${data.comments === 1 ? "thread" : "threads"} (Review tab)`}</title>
+          <rect x={-17} y={-9} width={34} height={18} rx={9} fill={INDIGO} />
+          <text x={0} y={4} textAnchor="middle" fill="#ffffff" fontSize={11} fontWeight={700}>
+            {`✎ ${data.comments}`}
+          </text>
+        </g>
+      )}
     </>
   );
 }

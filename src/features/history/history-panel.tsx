@@ -27,6 +27,8 @@ export interface HistoryPanelProps {
   readOnly: boolean;
   /** Called with the restored life cycle after a successful restore. */
   onRestored: (record: LifeCycleRecord) => void;
+  /** Open with this snapshot compared to the current state ("changed since approval"). */
+  compareWith?: string | null;
 }
 
 /** "current" or a snapshot id. */
@@ -35,13 +37,13 @@ const CURRENT = "current";
 
 const snapshotLabel = (s: SnapshotSummary) => `#${s.number} ${s.message}`;
 
-export function HistoryPanel({ lifeCycleId, version, readOnly, onRestored }: HistoryPanelProps) {
+export function HistoryPanel({ lifeCycleId, version, readOnly, onRestored, compareWith }: HistoryPanelProps) {
   const snapshots = useSnapshots(lifeCycleId);
   const [message, setMessage] = useState("");
   const create = useCreateSnapshot(lifeCycleId);
   const restore = useRestoreSnapshot(lifeCycleId);
   const [restoring, setRestoring] = useState<SnapshotSummary | null>(null);
-  const [compare, setCompare] = useState<{ before: Side; after: Side } | null>(null);
+  const [compare, setCompare] = useState<{ before: Side; after: Side } | null>(compareWith ? { before: compareWith, after: CURRENT } : null);
   const [notice, setNotice] = useState("");
 
   const trimmed = message.trim();

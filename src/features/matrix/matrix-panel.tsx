@@ -29,7 +29,7 @@ interface Cell {
 
 const cellKey = (to: string, from: string) => `${to}\u0000${from}`;
 
-export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selection }: EditorPanelProps) {
+export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selection, onSelect, commentCounts }: EditorPanelProps) {
   const m = useMemo(() => buildMatrices(doc), [doc]);
   const arrowsByCell = useMemo(() => {
     const map = new Map<string, Transition[]>();
@@ -42,7 +42,12 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
   const valueById = useMemo(() => new Map(m.entries.map((e) => [e.transitionId, e])), [m.entries]);
   const [shaded, setShaded] = useState(false);
   const [newKind, setNewKind] = useState<NewArrowKind>("survival");
-  const [active, setActive] = useState<Cell | null>(null);
+  const [active, setActiveCell] = useState<Cell | null>(null);
+  // The active cell is also the editor's selection (a review comment can be anchored to it).
+  const setActive = (cell: Cell | null) => {
+    setActiveCell(cell);
+    if (cell) onSelect({ kind: "cell", to: cell.to, from: cell.from });
+  };
   const [status, setStatus] = useState("");
 
   const n = doc.stages.length;
@@ -213,6 +218,17 @@ export function MatrixPanel({ document: doc, onChange, readOnly, analysis, selec
                         >
                           <CellContent arrows={arrows} value={value} valueOf={(id) => valueById.get(id)?.value ?? NaN} light={look?.lightText ?? false} />
                         </button>
+                      )}
+                      {(commentCounts.get(`cell:${to}:${from}`) ?? 0) > 0 && (
+                        <span
+                          className="float-left rounded-full bg-indigo px-1.5 text-[10px] leading-4 font-bold text-white"
+                          title="Open review threads on this entry (Review tab)"
+                          data-comment-marker=""
+                        >
+                          <span aria-hidden="true">✎ </span>
+                          {commentCounts.get(`cell:${to}:${from}`)}
+                          <span className="sr-only"> open review threads on this entry</span>
+                        </span>
                       )}
                       {reproduction && <span className="block text-right text-[10px] font-bold tracking-wide uppercase">reproduction</span>}
                       {e !== null && arrows.length > 0 && <span className="block text-right text-[10px] tabular-nums">elasticity {formatNumber(e, 2)}</span>}

@@ -40,7 +40,7 @@ const optionalNonNegative = (text: string) => {
 };
 const maxLength = (limit: number, what: string) => (text: string) => (text.length > limit ? { error: `${what} has at most ${limit} characters.` } : {});
 
-export function RatesPanel({ document: doc, onChange, readOnly, selection }: EditorPanelProps) {
+export function RatesPanel({ document: doc, onChange, readOnly, selection, commentCounts }: EditorPanelProps) {
   const usage = useMemo(() => arrowsUsingRates(doc), [doc]);
   const warnings = useMemo(() => probabilityWarnings(doc), [doc]);
   const stageName = useMemo(() => new Map(doc.stages.map((s) => [s.id, s.name])), [doc.stages]);
@@ -193,6 +193,13 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection }: Edi
                           check={(text) => ({ error: rateNameError(doc, rate.id, text) })}
                           onCommit={(text) => rename(rate, text)}
                         />
+                      )}
+                      {(commentCounts.get(`rate:${rate.id}`) ?? 0) > 0 && (
+                        <span className="mt-1 inline-block rounded-full bg-indigo px-1.5 text-[10px] leading-4 font-bold text-white" title="Open review threads on this rate (Review tab)" data-comment-marker="">
+                          <span aria-hidden="true">✎ </span>
+                          {commentCounts.get(`rate:${rate.id}`)}
+                          <span className="sr-only"> open review threads on this rate</span>
+                        </span>
                       )}
                     </td>
                     <td className="w-32 px-2 py-2">
