@@ -352,6 +352,34 @@ export function spectralRadiusDense(a: Float64Array, n: number, structure?: Grap
   return { value: full.lambda, converged: full.converged };
 }
 
+/**
+ * λ (per projection interval) and w (Σw = 1) of a non-negative matrix, started
+ * from a positive vector near its Perron vector — the matrix of a small change
+ * to a model whose w is known (levers, break-even scans, LTRE). Shifted inverse
+ * iteration from a Collatz–Wielandt upper bound σ ≥ λ (the same fallback
+ * dominantEigenDense uses): every other eigenvalue μ has |μ| ≤ λ, so λ is the
+ * eigenvalue nearest σ. The answer is accepted only with a small residual and
+ * a one-signed w; otherwise the full dominantEigenDense decides.
+ */
+export function perronRootFrom(a: Float64Array, n: number, start: Float64Array | null): { lambda: number; w: Float64Array; converged: boolean } {
+  if (start !== null && n > 1) {
+    const fb = shiftInvert(a, n, start);
+    const w = fb.w;
+    let s = 0;
+    for (let i = 0; i < n; i++) s += w[i] as number;
+    if (s !== 0 && Number.isFinite(s) && fb.lambda > 0) {
+      for (let i = 0; i < n; i++) w[i] = (w[i] as number) / s;
+      const tmp = new Float64Array(n);
+      matvec(a, n, w, tmp);
+      let res = 0;
+      for (let i = 0; i < n; i++) res += Math.abs((tmp[i] as number) - fb.lambda * (w[i] as number));
+      if (res <= ACCEPT * fb.lambda && oneSigned(w)) return { lambda: fb.lambda, w, converged: true };
+    }
+  }
+  const full = dominantEigenDense(a, n, { second: false });
+  return { lambda: full.lambda, w: full.w, converged: full.converged };
+}
+
 interface Finished {
   lambda: number;
   w: Float64Array;

@@ -62,3 +62,6 @@ export {
   type ExtinctionPoint,
   type StochasticResult,
 } from "./stochastic";
+export { exactLambda, exactChange, boundedTarget, rankByMagnitude, type ParameterBounds, type MatrixAt, type Baseline, type ExactChange } from "./levers";
+export { breakEvenValues, type BreakEven, type BreakEvenOptions, type Crossing, type LambdaAt } from "./break-even";
+export { ltreContributions, midpointSensitivities, LtreError, type LtreResult } from "./ltre";
