@@ -363,17 +363,48 @@ export function spectralRadiusDense(a: Float64Array, n: number, structure?: Grap
  */
 export function perronRootFrom(a: Float64Array, n: number, start: Float64Array | null): { lambda: number; w: Float64Array; converged: boolean } {
   if (start !== null && n > 1) {
-    const fb = shiftInvert(a, n, start);
-    const w = fb.w;
-    let s = 0;
-    for (let i = 0; i < n; i++) s += w[i] as number;
-    if (s !== 0 && Number.isFinite(s) && fb.lambda > 0) {
-      for (let i = 0; i < n; i++) w[i] = (w[i] as number) / s;
-      const tmp = new Float64Array(n);
-      matvec(a, n, w, tmp);
-      let res = 0;
-      for (let i = 0; i < n; i++) res += Math.abs((tmp[i] as number) - fb.lambda * (w[i] as number));
-      if (res <= ACCEPT * fb.lambda && oneSigned(w)) return { lambda: fb.lambda, w, converged: true };
+    const x = new Float64Array(n);
+    const y = new Float64Array(n);
+    let big = 0;
+    for (let i = 0; i < n; i++) big = Math.max(big, Math.abs(start[i] as number));
+    for (let i = 0; i < n; i++) x[i] = big > 0 ? Math.abs(start[i] as number) / big + 1e-6 : 1;
+    const shifted = new Float64Array(n * n);
+    let lambda = NaN;
+    let res = Infinity;
+    for (let attempt = 0; attempt < 3 && !(res <= 1e-13 * lambda); attempt++) {
+      matvec(a, n, x, y);
+      let sigma = 0;
+      for (let i = 0; i < n; i++) sigma = Math.max(sigma, (y[i] as number) / (x[i] as number));
+      if (!(sigma > 0) || !Number.isFinite(sigma)) break;
+      sigma *= 1 + 1e-12;
+      shifted.set(a);
+      for (let i = 0; i < n; i++) shifted[i * n + i] = (shifted[i * n + i] as number) - sigma;
+      const factors = luFactor(shifted, n, { replaceTinyPivots: true });
+      let previous = Infinity;
+      for (let it = 0; it < 8; it++) {
+        x.set(luSolve(factors, x));
+        normaliseSum(x);
+        matvec(a, n, x, y);
+        let sy = 0;
+        let sx = 0;
+        for (let i = 0; i < n; i++) {
+          sy += y[i] as number;
+          sx += x[i] as number;
+        }
+        lambda = sy / sx;
+        res = 0;
+        for (let i = 0; i < n; i++) res += Math.abs((y[i] as number) - lambda * (x[i] as number));
+        if (res <= 1e-13 * lambda || res > 0.5 * previous) break;
+        previous = res;
+      }
+      // A positive iterate for the next, tighter Collatz–Wielandt bound.
+      let mx = 0;
+      for (let i = 0; i < n; i++) mx = Math.max(mx, Math.abs(x[i] as number));
+      if (!(res <= 1e-13 * lambda)) for (let i = 0; i < n; i++) x[i] = Math.abs(x[i] as number) + 1e-12 * mx;
+    }
+    if (lambda > 0 && res <= ACCEPT * lambda && oneSigned(x)) {
+      normaliseSum(x);
+      return { lambda, w: x, converged: true };
     }
   }
   const full = dominantEigenDense(a, n, { second: false });
