@@ -15,6 +15,7 @@ import type { Mailer } from "./mail/mailer";
 import { accountRoutes } from "./routes/account";
 import { authRoutes } from "./routes/auth";
 import { devMailRoutes } from "./routes/dev-mail";
+import { leverRoutes } from "./routes/levers";
 import { lifeCycleRoutes } from "./routes/life-cycles";
 import { reviewRoutes } from "./routes/review";
 import { runRoutes } from "./routes/runs";
@@ -49,6 +50,7 @@ export function createApiRouter(deps: AppDeps): Router {
   lifeCycleRoutes(r, deps);
   runRoutes(r, deps);
   reviewRoutes(r, deps);
+  leverRoutes(r, deps);
   if (deps.config.mailOutbox) devMailRoutes(r, deps);
   return r;
 }

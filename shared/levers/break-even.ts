@@ -51,12 +51,15 @@ function lambdaAlong(model: LeverModel, lever: Lever): (x: number) => number {
   };
 }
 
-/** Break-even values for the levers named by key (all rates and entries when none are named). */
+/** Break-even values for the levers named by key (when none are named: every vital rate an arrow uses, or every non-zero entry of a life cycle without rates). */
 export function breakEvenTable(model: LeverModel, options: { target?: number; keys?: readonly string[] } = {}): BreakEvenTable {
   const target = options.target ?? 1;
   if (!(target > 0) || !Number.isFinite(target)) throw new RangeError("The target λ is a number above 0.");
   const wanted = options.keys ? new Set(options.keys) : null;
-  const levers: Lever[] = [...model.rates.filter((r) => r.arrows > 0), ...model.entries].filter((l) => wanted === null || wanted.has(l.key));
+  // Vital rates that some arrow uses; the matrix entries when the arrows are plain numbers (no rates to move).
+  const rates = model.rates.filter((r) => r.arrows > 0);
+  const all: Lever[] = wanted !== null ? [...rates, ...model.entries] : rates.length > 0 ? rates : model.entries;
+  const levers = all.filter((l) => wanted === null || wanted.has(l.key));
   const rows = levers.map((lever): BreakEvenRow => {
     const result = breakEvenValues(lambdaAlong(model, lever), { value: lever.value, lower: lever.lower, upper: lever.upper, target });
     const range = `[${short(result.scanned.lower)}, ${short(result.scanned.upper)}]`;

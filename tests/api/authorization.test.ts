@@ -215,6 +215,8 @@ const MATRIX: Record<string, Entry> = {
     request: async (c) => ({ path: "/notifications/unsubscribe", body: { token: unsubscribeToken(c.server.config.sessionSecret, (await signUpAgent(c.server)).user.id) } }),
   },
   "POST /analyze": { access: "user", request: async () => ({ path: "/analyze", body: { matrix: [[0.5, 1.2], [0.4, 0.8]] } }) },
+  "POST /levers": { access: "user", request: async () => ({ path: "/levers", body: { document: threeStageLifeCycle(), breakEven: false } }) },
+  "POST /ltre": { access: "user", request: async () => ({ path: "/ltre", body: { reference: threeStageLifeCycle(), comparison: threeStageLifeCycle() } }) },
 };
 
 async function freshAgent(persona: Role | "nonMember") {
