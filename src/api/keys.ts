@@ -36,6 +36,11 @@ export const queryKeys = {
     /** The live analysis of the editor's unsaved document at one of its revisions (POST /analyze). */
     draftAnalysis: (lifeCycleId: string, revision: number) => [...queryKeys.lifeCycles.analysis(lifeCycleId), "draft", revision] as const,
     snapshots: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "snapshots"] as const,
+    /** Levers of the editor's document at one revision (POST /levers). */
+    levers: (lifeCycleId: string, revision: number, relativeChange: number, target: number, breakEven: boolean) =>
+      [...queryKeys.lifeCycles.detail(lifeCycleId), "levers", revision, relativeChange, target, breakEven] as const,
+    /** LTRE of another life cycle against the editor's document at one revision (POST /ltre). */
+    ltre: (lifeCycleId: string, revision: number, comparisonId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "ltre", revision, comparisonId] as const,
     /** The life cycle's Runs, newest first (GET /life-cycles/:id/runs). */
     runs: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "runs"] as const,
     /** Review comment threads with their replies (GET /life-cycles/:id/comments). */

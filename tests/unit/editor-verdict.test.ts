@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { lambdaVerdict, perStep, steps } from "../../src/features/results/verdict";
+import { lambdaVerdict, perStep, steps } from "../../src/lib/verdict";
 
 describe("lambdaVerdict", () => {
   it("says declining, stable or growing with the change per time step", () => {

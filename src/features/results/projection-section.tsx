@@ -11,7 +11,7 @@ import { Button } from "../../components/ui/button";
 import { Loading } from "../../components/ui/spinner";
 import { formatNumber } from "../../lib/number-format";
 import { parseNumberInput } from "../../lib/number-input";
-import { steps as stepsWord } from "./verdict";
+import { steps as stepsWord } from "../../lib/verdict";
 
 const ProjectionChart = lazy(() => import("./charts").then((m) => ({ default: m.ProjectionChart })));
 

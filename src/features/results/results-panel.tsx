@@ -19,7 +19,7 @@ import { DiagnosticsList } from "./diagnostics-list";
 import { Figure } from "./figure";
 import { ProjectionSection } from "./projection-section";
 import { SensitivityTable } from "./sensitivity-table";
-import { censusNote, lambdaVerdict, steps as stepsWord } from "./verdict";
+import { censusNote, lambdaVerdict, steps as stepsWord } from "../../lib/verdict";
 import { VitalRatesTable } from "./vital-rates-table";
 
 const StageBars = lazy(() => import("./charts").then((m) => ({ default: m.StageBars })));
