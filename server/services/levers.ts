@@ -1,6 +1,5 @@
 import type { LifeCycle } from "../../shared/lifecycle";
 import { breakEvenTable, compareScenarios, LeverError, leverModel, lifeCycleLtre, rankLevers } from "../../shared/levers";
-import type { Scenario } from "../../shared/lifecycle/scenarios";
 import type { LeversRequest, LeversResponse, LtreResponse } from "../../shared/schemas/levers";
 import { HttpError } from "../http/errors";
 import { parseDocument } from "./life-cycles";
@@ -14,7 +13,7 @@ function asBadRequest(err: unknown, field: string): never {
   throw err;
 }
 
-const scenariosOf = (doc: LifeCycle): readonly Scenario[] => (doc as LifeCycle & { scenarios?: Scenario[] }).scenarios ?? [];
+const scenariosOf = (doc: LifeCycle) => doc.scenarios ?? [];
 
 /** Scenario comparison, lever ranking and (unless asked not to) break-even values of one life cycle. */
 export function leversOfLifeCycle(req: LeversRequest): LeversResponse {

@@ -10,9 +10,9 @@
  * value set, is shared among the arrows in proportion to their current values
  * (all of it to the first arrow when they are all zero).
  */
-import { buildMatrices, type LifeCycle, type Transition } from "../lifecycle";
-import { applyOp, boundWords, scaleBounds, type Scenario, type ScenarioChange } from "../lifecycle/scenarios";
-import { LeverError, rateScaleOf } from "./model";
+import { buildMatrices, rateScale, scaleBounds, type LifeCycle, type Scenario, type ScenarioChange, type Transition } from "../lifecycle";
+import { applyOp, boundWords } from "../lifecycle/scenarios";
+import { LeverError } from "./model";
 
 export interface ApplyOptions {
   /** Use each change's achievable value instead of its planned one (changes without one keep their planned value). */
@@ -44,7 +44,7 @@ export function applyScenario(doc: LifeCycle, scenario: Scenario, options: Apply
     if (c.target.kind !== "rate") return;
     const rate = byId.get(c.target.rateId);
     if (rate === undefined) throw new LeverError(`Scenario "${scenario.name}" changes a vital rate that does not exist (id "${c.target.rateId}").`, [...path(ci, "target"), "rateId"]);
-    const scale = rateScaleOf(doc.rates.find((r) => r.id === rate.id)!);
+    const scale = rateScale(doc.rates.find((r) => r.id === rate.id)!);
     const { lower, upper } = scaleBounds(scale);
     const next = applyOp(c.op, rate.value, valueOf(c));
     if (!Number.isFinite(next)) throw new LeverError(`Scenario "${scenario.name}" takes ${rate.name} to ${next}, which is not a number.`, path(ci, field(c)));

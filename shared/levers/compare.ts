@@ -6,7 +6,7 @@
  */
 import { analyzeMatrix } from "../demography";
 import { buildMatrices, type LifeCycle } from "../lifecycle";
-import type { Scenario } from "../lifecycle/scenarios";
+import type { Scenario } from "../lifecycle";
 import { applyScenario } from "./apply";
 import { LeverError } from "./model";
 

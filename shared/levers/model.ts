@@ -5,8 +5,7 @@
  * itself (everything else at baseline) on a Float64Array.
  */
 import { analyzeMatrix, type MatrixAnalysis } from "../demography";
-import { compileLifeCycle, LifeCycleFormulaError, type CompiledLifeCycle, type LifeCycle, type VitalRate, type VitalRateSensitivity } from "../lifecycle";
-import { scaleBounds, type RateScaleName } from "../lifecycle/scenarios";
+import { compileLifeCycle, LifeCycleFormulaError, rateScale, scaleBounds, type CompiledLifeCycle, type LifeCycle, type RateScale, type VitalRateSensitivity } from "../lifecycle";
 
 /** Why a life cycle cannot be used for levers: a plain message and the field at fault. */
 export class LeverError extends Error {
@@ -19,12 +18,6 @@ export class LeverError extends Error {
   }
 }
 
-/** The scale of a vital rate: stated on the rate, or inferred from its value (0 ≤ x ≤ 1 probability, > 1 non-negative, < 0 unbounded). */
-export function rateScaleOf(rate: Pick<VitalRate, "value"> & { scale?: RateScaleName }): RateScaleName {
-  if (rate.scale !== undefined) return rate.scale;
-  return rate.value < 0 ? "unbounded" : rate.value <= 1 ? "probability" : "non-negative";
-}
-
 export interface RateLever {
   readonly kind: "rate";
   readonly key: string;
@@ -32,7 +25,7 @@ export interface RateLever {
   readonly label: string;
   readonly slot: number;
   readonly value: number;
-  readonly scale: RateScaleName;
+  readonly scale: RateScale;
   readonly lower: number;
   readonly upper: number;
   /** Arrows whose formula uses the rate. */
@@ -124,7 +117,7 @@ export function leverModel(doc: LifeCycle): LeverModel {
     }
   }
   const rates: RateLever[] = doc.rates.map((r, slot) => {
-    const scale = rateScaleOf(r as VitalRate & { scale?: RateScaleName });
+    const scale = rateScale(r);
     return { kind: "rate", key: r.id, rateId: r.id, label: r.name, slot, value: r.value, scale, ...scaleBounds(scale), arrows: usesRate[slot]! };
   });
 

@@ -5,7 +5,8 @@
  * the team thinks achievable, the exact change in λ from that.
  */
 import { exactChange, type ExactChange } from "../demography";
-import { applyOp, type Scenario, type ScenarioChange } from "../lifecycle/scenarios";
+import type { Scenario, ScenarioChange } from "../lifecycle";
+import { applyOp } from "../lifecycle/scenarios";
 import { type Lever, type LeverModel } from "./model";
 
 /** Default relative change of the ranking (+10 %). */

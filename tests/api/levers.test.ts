@@ -37,6 +37,48 @@ describe("POST /api/v1/levers", () => {
     expect(viaToken.body.breakEven).toBeNull();
   });
 
+  it("compares the document's scenarios, and a stored life cycle keeps them", async () => {
+    const agent = await signUpAgent(server);
+    const scenarios = [
+      { id: "sc_a", name: "Protect adults", action: "Close the road in spring", cost: 4, changes: [{ id: "ch_a", target: { kind: "rate", rateId: "vr_sa" }, op: "set", value: 0.9, achievable: 0.93 }] },
+      { id: "sc_j", name: "Head-start", changes: [{ id: "ch_j", target: { kind: "entry", from: "st_j", to: "st_s" }, op: "multiply", value: 1.5 }] },
+    ];
+    const doc = withScenarios(scenarios);
+    const res = await agent.post("/api/v1/levers", { document: doc, breakEven: false });
+    expect(res.status).toBe(200);
+    const rows = res.body.comparison.rows as { name: string; planned: { lambda: number }; deltaLambdaPerCost: number | null }[];
+    expect(rows.map((r) => r.name)).toEqual(["Baseline", "Protect adults", "Head-start"]);
+    const adults = { ...threeStageLifeCycle(), rates: threeStageLifeCycle().rates.map((r) => (r.id === "vr_sa" ? { ...r, value: 0.9 } : r)) };
+    expect(Math.abs(rows[1]!.planned.lambda - lambdaOf(adults))).toBeLessThan(1e-12);
+    expect(rows[1]!.deltaLambdaPerCost).toBeCloseTo((rows[1]!.planned.lambda - rows[0]!.planned.lambda) / 4, 12);
+    const sa = res.body.ranking.rows.find((r: { rateId?: string }) => r.rateId === "vr_sa");
+    expect(sa.achievable).toMatchObject({ scenarioName: "Protect adults", to: 0.93 });
+
+    const studyId = (await agent.post("/api/v1/studies", { name: "Levers" })).body.id as string;
+    const created = await agent.post(`/api/v1/studies/${studyId}/life-cycles`, { document: doc });
+    expect(created.status).toBe(201);
+    const snap = await agent.post(`/api/v1/life-cycles/${created.body.id}/snapshots`, { message: "With scenarios" });
+    expect(snap.status).toBe(201);
+    const stored = await agent.get(`/api/v1/snapshots/${snap.body.id}`);
+    expect(stored.body.document.scenarios).toEqual(scenarios);
+  });
+
+  it("refuses a saved scenario that takes a probability above 1, naming the rate, the bound and the field", async () => {
+    const agent = await signUpAgent(server);
+    const studyId = (await agent.post("/api/v1/studies", { name: "Levers" })).body.id as string;
+    const created = await agent.post(`/api/v1/studies/${studyId}/life-cycles`, { document: threeStageLifeCycle() });
+    const bad = withScenarios([{ id: "sc_a", name: "Too much", changes: [{ id: "ch_a", target: { kind: "rate", rateId: "vr_sa" }, op: "multiply", value: 1.5 }] }]);
+    const res = await agent.put(`/api/v1/life-cycles/${created.body.id}`, { version: created.body.version, document: bad });
+    expect(res.status).toBe(400);
+    expect(res.body.error.fields).toEqual([{ path: "document.scenarios.0.changes.0.value", message: 'Scenario "Too much" takes s_a to 1.275, above its upper bound 1 (it is a probability).' }]);
+    const ghost = withScenarios([{ id: "sc_g", name: "Ghost", changes: [{ id: "ch_g", target: { kind: "rate", rateId: "vr_nope" }, op: "set", value: 0.5 }] }]);
+    const res2 = await agent.post("/api/v1/levers", { document: ghost });
+    expect(res2.status).toBe(400);
+    expect(res2.body.error.fields[0]).toEqual({ path: "document.scenarios.0.changes.0.target.rateId", message: 'Scenario "Ghost" changes a vital rate that does not exist (id "vr_nope").' });
+    const still = await agent.get(`/api/v1/life-cycles/${created.body.id}`);
+    expect(still.body.document.scenarios).toBeUndefined();
+  });
+
   it("refuses bad input with a 400 naming the field", async () => {
     const agent = await signUpAgent(server);
     const zero = await agent.post("/api/v1/levers", { document: threeStageLifeCycle(), relativeChange: 0 });

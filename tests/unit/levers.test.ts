@@ -3,9 +3,9 @@
 // model, central finite differences, closed forms) or a published example.
 import { describe, expect, it } from "vitest";
 import { analyzeMatrix, breakEvenValues, ltreContributions } from "../../shared/demography";
-import { buildMatrices, lifeCycleFromMatrix, type LifeCycle } from "../../shared/lifecycle";
+import { buildMatrices, lifeCycleFromMatrix, LifeCycleSchema, rateScale, type LifeCycle } from "../../shared/lifecycle";
 import { checkScenarioRules, type Scenario } from "../../shared/lifecycle/scenarios";
-import { applyScenario, breakEvenTable, compareScenarios, LeverError, leverModel, lifeCycleLtre, rankLevers, rateScaleOf } from "../../shared/levers";
+import { applyScenario, breakEvenTable, compareScenarios, LeverError, leverModel, lifeCycleLtre, rankLevers } from "../../shared/levers";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 import { LOGGERHEAD } from "./demography-fixtures";
 
@@ -60,7 +60,7 @@ describe("lever ranking", () => {
       const r = doc.rates.find((x) => x.id === row.rateId)!;
       for (const [stepName, factor] of [["increase", 1.1], ["decrease", 0.9]] as const) {
         const step = row[stepName];
-        const wanted = Math.min(r.value * factor, rateScaleOf(r) === "probability" ? 1 : Infinity);
+        const wanted = Math.min(r.value * factor, rateScale(r) === "probability" ? 1 : Infinity);
         expect(step.to).toBeCloseTo(wanted, 14);
         const recomputed = lambdaOfDoc(withRate(doc, r.id, wanted)) - base;
         expect(Math.abs(step.deltaLambda! - recomputed)).toBeLessThan(1e-12);
@@ -212,8 +212,20 @@ describe("scenarios", () => {
     const scenario: Scenario = { id: "sc_1", name: "Too much", changes: [{ id: "ch_1", target: { kind: "rate", rateId: "vr_sa" }, op: "multiply", value: 1.2 }] };
     expect(() => applyScenario(doc, scenario)).toThrow('Scenario "Too much" takes s_a to 1.02, above its upper bound 1 (it is a probability).');
     const issues: { path: (string | number)[]; message: string }[] = [];
-    checkScenarioRules({ ...doc, scenarios: [scenario] }, (path, message) => issues.push({ path, message }), rateScaleOf);
+    checkScenarioRules({ ...doc, scenarios: [scenario] }, (path, message) => issues.push({ path, message }));
     expect(issues).toEqual([{ path: ["scenarios", 0, "changes", 0, "value"], message: 'Scenario "Too much" takes s_a to 1.02, above its upper bound 1 (it is a probability).' }]);
+  });
+
+  it("the document refuses such a change too, at the field's path, and keeps a valid one", () => {
+    const over = LifeCycleSchema.safeParse({ ...doc, scenarios: [{ id: "sc_1", name: "Too much", changes: [{ id: "ch_1", target: { kind: "rate", rateId: "vr_sa" }, op: "add", value: 0.1, achievable: 0.2 }] }] });
+    expect(over.success).toBe(false);
+    expect(over.error!.issues.map((i) => [i.path.join("."), i.message])).toEqual([
+      ["scenarios.0.changes.0.achievable", 'Scenario "Too much" at its achievable change would take s_a to 1.05, above its upper bound 1 (it is a probability).'],
+    ]);
+    const ok = LifeCycleSchema.parse({ ...doc, scenarios: [{ id: "sc_1", name: "Fine", cost: 3, changes: [{ id: "ch_1", target: { kind: "rate", rateId: "vr_sa" }, op: "add", value: 0.05, achievable: 0.1 }] }] });
+    expect(ok.scenarios![0]!.changes[0]!.achievable).toBe(0.1);
+    const negative = LifeCycleSchema.safeParse({ ...doc, scenarios: [{ id: "sc_1", name: "Neg", changes: [{ id: "ch_1", target: { kind: "entry", from: "st_a", to: "st_j" }, op: "multiply", value: -1 }] }] });
+    expect(negative.error!.issues.map((i) => i.message)).toEqual(['Scenario "Neg": a factor cannot be negative; got -1.']);
   });
 
   it("refuses a change below 0 and a reference to a rate that does not exist", () => {
@@ -221,7 +233,7 @@ describe("scenarios", () => {
     expect(() => applyScenario(doc, below)).toThrow("takes f to -0.4, below its lower bound 0 (it cannot be negative)");
     const ghost: Scenario = { id: "sc_2", name: "Ghost", changes: [{ id: "ch_2", target: { kind: "rate", rateId: "vr_nope" }, op: "set", value: 0.5 }] };
     const issues: string[] = [];
-    checkScenarioRules({ ...doc, scenarios: [ghost] }, (path, message) => issues.push(`${path.join(".")}: ${message}`), rateScaleOf);
+    checkScenarioRules({ ...doc, scenarios: [ghost] }, (path, message) => issues.push(`${path.join(".")}: ${message}`));
     expect(issues).toEqual(['scenarios.0.changes.0.target.rateId: Scenario "Ghost" changes a vital rate that does not exist (id "vr_nope").']);
     expect(() => applyScenario(doc, ghost)).toThrow(LeverError);
   });
