@@ -12,6 +12,7 @@ import { RUN_KINDS } from "./runs/registry";
 import { createRun } from "./runs/service";
 import { recordEvent } from "./services/audit";
 import { takeSnapshot } from "./services/snapshots";
+import { seedScenarioRun, withDemoScenarios } from "./seed/levers";
 import { seedReview } from "./seed/review";
 
 /** Invented people, species and places: the demo must never pass for real data. */
@@ -102,7 +103,7 @@ export async function seedDemo(db: Db): Promise<{ studyId: string; created: bool
       }
     }
     for (const site of DEMO_SITES) {
-      const document = demoLifeCycle(site);
+      const document = withDemoScenarios(demoLifeCycle(site));
       const [lc] = await tx
         .insert(lifeCycles)
         .values({ studyId, name: document.name, document, schemaVersion: LIFE_CYCLE_SCHEMA_VERSION, createdBy: ids[DEMO_USERS[1]!.email]!, updatedBy: ids[DEMO_USERS[1]!.email]! })
@@ -145,6 +146,7 @@ export async function seedDemoRun(db: Db, jobs: JobSender, studyId: string): Pro
       seed: 20261201,
     },
   });
+  await seedScenarioRun(db, jobs, studyId, lc.id, editor!.id);
   return true;
 }
 

@@ -2,7 +2,9 @@ import { randomInt } from "node:crypto";
 import { and, eq, inArray, isNull } from "drizzle-orm";
 import { ZodError } from "zod";
 import { mergeChunks, simulateChunk, type ChunkResult } from "../../shared/demography";
+import { applyScenario, LeverError } from "../../shared/levers";
 import { upgradeLifeCycle, type LifeCycle } from "../../shared/lifecycle";
+import { applyOp } from "../../shared/lifecycle/scenarios";
 import { buildRiskModel, iucnCriterionE, planChunks, RiskModelError, yearsPerTimeStep, type ChunkPlan } from "../../shared/risk";
 import { RiskSettingsSchema, type RiskSettings } from "../../shared/schemas/risk";
 import type { RiskRunResult } from "../../shared/schemas/runs";
@@ -28,6 +30,34 @@ function model(input: RiskInput) {
   return buildRiskModel(input.document, input.settings, input.environments);
 }
 
+/**
+ * A Run of a Levers scenario computes the life cycle with the scenario's
+ * changes made. Drawn rates take their yearly mean from the settings, so a
+ * scenario's change to such a rate is made to that mean too.
+ */
+function scenarioForRun(doc: LifeCycle, settings: RiskSettings): { document: LifeCycle; settings: RiskSettings } | null {
+  if (settings.scenarioId === undefined) return null;
+  const index = (doc.scenarios ?? []).findIndex((s) => s.id === settings.scenarioId);
+  const scenario = doc.scenarios?.[index];
+  if (!scenario) throw badSettings([{ path: "scenarioId", message: "The saved life cycle has no scenario with this id." }]);
+  if (settings.environment.kind !== "vital-rates") {
+    throw badSettings([{ path: "scenarioId", message: "A scenario run varies this life cycle's vital rates: choose the vital-rate environment." }]);
+  }
+  let document: LifeCycle;
+  try {
+    document = applyScenario(doc, scenario, { index });
+  } catch (err) {
+    if (err instanceof LeverError) throw badSettings([{ path: "scenarioId", message: err.message }]);
+    throw err;
+  }
+  const rates = settings.environment.rates.map((r) => {
+    let mean = r.mean;
+    for (const c of scenario.changes) if (c.target.kind === "rate" && c.target.rateId === r.rateId) mean = applyOp(c.op, mean, c.value);
+    return { ...r, mean };
+  });
+  return { document, settings: { ...settings, environment: { ...settings.environment, rates } } };
+}
+
 export const riskRun: RunKind<RiskInput, ChunkResult, RiskRunResult> = {
   async prepare(db: Db, target, raw) {
     let settings: RiskSettings;
@@ -39,7 +69,9 @@ export const riskRun: RunKind<RiskInput, ChunkResult, RiskRunResult> = {
     }
     const [row] = await db.select().from(lifeCycles).where(and(eq(lifeCycles.id, target.lifeCycleId), isNull(lifeCycles.deletedAt)));
     if (!row) throw new HttpError(404, "No such life cycle.");
-    const document = upgradeLifeCycle(row.document);
+    const saved = upgradeLifeCycle(row.document);
+    const scenario = scenarioForRun(saved, settings);
+    const document = scenario ? scenario.document : saved;
     const environments: Record<string, LifeCycle> = {};
     if (settings.environment.kind !== "vital-rates") {
       const ids = settings.environment.lifeCycleIds;
@@ -53,7 +85,8 @@ export const riskRun: RunKind<RiskInput, ChunkResult, RiskRunResult> = {
       }
     }
     const seed = settings.seed ?? randomInt(0, 2 ** 31);
-    const input: RiskInput = { settings: { ...settings, seed }, seed, document, environments, plan: { chunks: [], version: 0, workUnits: 0, estimatedSeconds: 0, estimatedSecondsPerChunk: 0 } };
+    // A scenario's run computes with the scenario's means; the Run keeps the settings as entered.
+    const input: RiskInput = { settings: { ...(scenario ? scenario.settings : settings), seed }, seed, document, environments, plan: { chunks: [], version: 0, workUnits: 0, estimatedSeconds: 0, estimatedSecondsPerChunk: 0 } };
     try {
       model(input); // every check that needs the documents, before anything is queued
     } catch (err) {
@@ -61,7 +94,7 @@ export const riskRun: RunKind<RiskInput, ChunkResult, RiskRunResult> = {
       throw err;
     }
     input.plan = planChunks(settings, document.stages.length, { transitionCount: document.transitions.length });
-    return { input, settings: input.settings, chunks: input.plan.chunks.length };
+    return { input, settings: { ...settings, seed }, chunks: input.plan.chunks.length };
   },
 
   runChunk(input, chunkIndex) {

@@ -116,6 +116,12 @@ const RiskSettingsObjectSchema = z.strictObject({
   horizons: z.array(wholeNumber("A reporting year", 1, MAX_HORIZON)).max(MAX_REPORT_YEARS, `At most ${MAX_REPORT_YEARS} reporting years.`).optional(),
   /** Seed of the random streams; the service picks and stores one when absent. */
   seed: wholeNumber("The seed", 0, Number.MAX_SAFE_INTEGER).optional(),
+  /**
+   * Run the life cycle as changed by this Levers scenario (its id in the
+   * document's `scenarios`); the vital-rate means drawn each year move with
+   * the scenario's rate changes. Absent: the life cycle as it is.
+   */
+  scenarioId: IdSchema.optional(),
   /** Years discarded before estimating the stochastic growth rate (default from the damping ratio). */
   burnIn: wholeNumber("The burn-in", 0, MAX_HORIZON).optional(),
 });

@@ -26,6 +26,7 @@ import {
 } from "../features/editor-state";
 import type { ExportPanelProps } from "../features/export";
 import type { HistoryPanelProps } from "../features/history";
+import type { LeversPanelProps } from "../features/levers";
 import { openThreadCounts } from "../features/review/anchors";
 import { LifeCycleReviewStatus } from "../features/review/review-status";
 import type { ReviewPanelProps } from "../features/review";
@@ -41,16 +42,18 @@ const DiagramPanel = lazy(() => import("../features/diagram").then((m) => ({ def
 const RatesPanel = lazy(() => import("../features/rates").then((m) => ({ default: m.RatesPanel })));
 const MatrixPanel = lazy(() => import("../features/matrix").then((m) => ({ default: m.MatrixPanel })));
 const ResultsPanel = lazy(() => import("../features/results").then((m) => ({ default: m.ResultsPanel })));
+const LeversPanel = lazy(() => import("../features/levers").then((m) => ({ default: m.LeversPanel })));
 const RiskPanel = lazy(() => import("../features/risk").then((m) => ({ default: m.RiskPanel })));
 const HistoryPanel = lazy(() => import("../features/history").then((m) => ({ default: m.HistoryPanel })));
 const ExportPanel = lazy(() => import("../features/export").then((m) => ({ default: m.ExportPanel })));
 const ReviewPanel = lazy(() => import("../features/review").then((m) => ({ default: m.ReviewPanel })));
 
-type TabId = "diagram" | "rates" | "matrix" | "results" | "risk" | "review" | "history" | "export";
+type TabId = "diagram" | "rates" | "matrix" | "results" | "levers" | "risk" | "review" | "history" | "export";
 
 interface TabContext {
   /** The panel props for one tab (each tab gets its own `onSelect`). */
   panel: (tab: TabId) => EditorPanelProps;
+  levers: LeversPanelProps;
   risk: RiskPanelProps;
   history: HistoryPanelProps;
   exports: ExportPanelProps;
@@ -62,6 +65,7 @@ const TABS: readonly { id: TabId; label: string; render: (c: TabContext) => Reac
   { id: "rates", label: "Rates", render: (c) => <RatesPanel {...c.panel("rates")} /> },
   { id: "matrix", label: "Matrix", render: (c) => <MatrixPanel {...c.panel("matrix")} /> },
   { id: "results", label: "Results", render: (c) => <ResultsPanel {...c.panel("results")} /> },
+  { id: "levers", label: "Levers", render: (c) => <LeversPanel {...c.levers} /> },
   { id: "risk", label: "Risk", render: (c) => <RiskPanel {...c.risk} /> },
   { id: "review", label: "Review", render: (c) => <ReviewPanel {...c.review} /> },
   // Keyed by the compared snapshot, so "See the changes" opens a fresh comparison.
@@ -129,8 +133,7 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
     showTab(tabIndex(anchor.kind === "cell" ? "matrix" : anchor.kind === "rate" ? "rates" : "diagram"));
   };
 
-  const context: TabContext = {
-    panel: (tab) => ({
+  const panelProps = (tab: TabId): EditorPanelProps => ({
       document,
       onChange: editor.change,
       readOnly,
@@ -142,7 +145,10 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
         if (tab !== "diagram" && (next?.kind === "stage" || next?.kind === "transition")) showTab(0);
       },
       commentCounts,
-    }),
+  });
+  const context: TabContext = {
+    panel: panelProps,
+    levers: { ...panelProps("levers"), lifeCycleId: initial.id, studyId: study.id, revision: editor.present.revision, saveStatus: editor.save.status },
     risk: { lifeCycleId: initial.id, studyId: study.id, document, analysis, readOnly, saveStatus: editor.save.status, version: editor.version },
     history: { lifeCycleId: initial.id, version: editor.version, readOnly, onRestored: editor.reset, compareWith: search.get("compare") },
     exports: { document, analysis },

@@ -1,0 +1,1 @@
+export { LeversPanel, type LeversPanelProps } from "./levers-panel";
