@@ -103,6 +103,9 @@ export function checkScenarioRules(doc: ScenarioFields, issue: Issue): void {
     const other = names.get(s.name);
     if (other !== undefined) issue(["scenarios", i, "name"], `Two scenarios are named "${s.name}" (scenarios.${other} and scenarios.${i}).`);
     else names.set(s.name, i);
+    // Changes apply in order, so two changes to one rate build on each other (as in applyScenario).
+    const planned = new Map<string, number>();
+    const achievable = new Map<string, number>();
     s.changes.forEach((c, j) => {
       const at = (...field: string[]) => ["scenarios", i, "changes", j, "target", ...field];
       const field = (name: "value" | "achievable") => ["scenarios", i, "changes", j, name];
@@ -127,9 +130,11 @@ export function checkScenarioRules(doc: ScenarioFields, issue: Issue): void {
       const upper = scale === "probability" ? 1 : Infinity;
       const lower = scale === "unbounded" ? -Infinity : 0;
       for (const name of ["value", "achievable"] as const) {
-        const amount = c[name];
-        if (amount === undefined) continue;
-        const next = applyOp(c.op, rate.value, amount);
+        const running = name === "value" ? planned : achievable;
+        const amount = name === "value" ? c.value : (c.achievable ?? c.value);
+        const next = applyOp(c.op, running.get(rate.id) ?? rate.value, amount);
+        running.set(rate.id, next);
+        if (name === "achievable" && c.achievable === undefined) continue;
         const verb = name === "value" ? "takes" : "at its achievable change would take";
         if (next > upper) issue(field(name), `Scenario "${s.name}" ${verb} ${rate.name} to ${short(next)}, above its upper bound ${boundWords(scale, "upper")}.`);
         else if (next < lower) issue(field(name), `Scenario "${s.name}" ${verb} ${rate.name} to ${short(next)}, below its lower bound ${boundWords(scale, "lower")}.`);

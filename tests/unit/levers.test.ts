@@ -224,6 +224,12 @@ describe("scenarios", () => {
     ]);
     const ok = LifeCycleSchema.parse({ ...doc, scenarios: [{ id: "sc_1", name: "Fine", cost: 3, changes: [{ id: "ch_1", target: { kind: "rate", rateId: "vr_sa" }, op: "add", value: 0.05, achievable: 0.1 }] }] });
     expect(ok.scenarios![0]!.changes[0]!.achievable).toBe(0.1);
+    // Changes build on each other: 0.85 × 1.1 + 0.15 = 1.085.
+    const twice = LifeCycleSchema.safeParse({
+      ...doc,
+      scenarios: [{ id: "sc_1", name: "Twice", changes: [{ id: "ch_1", target: { kind: "rate", rateId: "vr_sa" }, op: "multiply", value: 1.1 }, { id: "ch_2", target: { kind: "rate", rateId: "vr_sa" }, op: "add", value: 0.15 }] }],
+    });
+    expect(twice.error!.issues.map((i) => [i.path.join("."), i.message])).toEqual([["scenarios.0.changes.1.value", 'Scenario "Twice" takes s_a to 1.085, above its upper bound 1 (it is a probability).']]);
     const negative = LifeCycleSchema.safeParse({ ...doc, scenarios: [{ id: "sc_1", name: "Neg", changes: [{ id: "ch_1", target: { kind: "entry", from: "st_a", to: "st_j" }, op: "multiply", value: -1 }] }] });
     expect(negative.error!.issues.map((i) => i.message)).toEqual(['Scenario "Neg": a factor cannot be negative; got -1.']);
   });

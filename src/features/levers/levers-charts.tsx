@@ -32,23 +32,28 @@ function Chart({ option, height, ariaLabel }: { option: object; height: number; 
   );
 }
 
-/** λ of each row as horizontal bars, with a dashed line at λ = 1 (replacement). */
+/**
+ * λ of each row as bars drawn from λ = 1 (replacement): to the left in clay
+ * for a declining population, to the right in spruce for a growing one, so a
+ * bar's length is the distance from replacement, not from an arbitrary axis start.
+ */
 export function LambdaBars({ names, lambdas, ariaLabel }: { names: string[]; lambdas: (number | null)[]; ariaLabel: string }) {
+  const fromOne = (x: number) => formatNumber(1 + x, 4);
   const option = {
     textStyle,
     animation: false,
-    grid: { left: 8, right: 64, top: 8, bottom: 40, containLabel: true },
-    tooltip: { trigger: "axis", axisPointer: { type: "shadow" }, valueFormatter: fmt },
-    xAxis: { type: "value", name: "λ (growth factor per time step)", nameLocation: "middle", nameGap: 26, nameTextStyle: axisName, scale: true, axisLabel: { formatter: fmt }, splitLine },
+    grid: { left: 8, right: 72, top: 8, bottom: 40, containLabel: true },
+    tooltip: { trigger: "axis", axisPointer: { type: "shadow" }, valueFormatter: (v: unknown) => (typeof v === "number" ? (1 + v).toFixed(4) : "—") },
+    xAxis: { type: "value", name: "λ (bars start at λ = 1, where the population replaces itself)", nameLocation: "middle", nameGap: 26, nameTextStyle: axisName, axisLabel: { formatter: fromOne }, splitLine },
     yAxis: { type: "category", data: names, inverse: true, axisTick: { show: false }, axisLabel: { width: 160, overflow: "truncate" } },
     series: [
       {
         type: "bar",
         name: "λ",
         barMaxWidth: 22,
-        data: lambdas.map((l, k) => ({ value: l, itemStyle: { color: k === 0 ? INK : l !== null && l >= 1 ? SPRUCE : CLAY } })),
-        label: { show: true, position: "right", formatter: (p: { value: number | null }) => (p.value === null ? "—" : p.value.toFixed(4)), color: INK, fontFamily: FONT },
-        markLine: { symbol: "none", silent: true, lineStyle: { color: INK, type: "dashed" }, label: { formatter: "λ = 1", color: INK }, data: [{ xAxis: 1 }] },
+        data: lambdas.map((l, k) => ({ value: l === null ? null : l - 1, itemStyle: { color: k === 0 ? INK : l !== null && l >= 1 ? SPRUCE : CLAY } })),
+        label: { show: true, position: "right", formatter: (p: { value: number | null }) => (p.value === null ? "—" : (1 + p.value).toFixed(4)), color: INK, fontFamily: FONT },
+        markLine: { symbol: "none", silent: true, lineStyle: { color: INK, type: "dashed" }, label: { formatter: "λ = 1", color: INK }, data: [{ xAxis: 0 }] },
       },
     ],
   };
@@ -83,20 +88,33 @@ export function Tornado({ rows, percent, ariaLabel }: { rows: TornadoRow[]; perc
 export function ContributionHeatmap({ stageNames, contributions, ariaLabel }: { stageNames: string[]; contributions: number[][]; ariaLabel: string }) {
   let max = 0;
   for (const row of contributions) for (const c of row) max = Math.max(max, Math.abs(c));
-  const data: [number, number, number | "-"][] = [];
-  contributions.forEach((row, i) => row.forEach((c, j) => data.push([j, i, c === 0 ? "-" : c])));
+  // Dark cells get light labels (text contrast).
+  const data: { value: [number, number, number | "-"]; label?: { color: string } }[] = [];
+  contributions.forEach((row, i) =>
+    row.forEach((c, j) => data.push({ value: [j, i, c === 0 ? "-" : c], ...(max > 0 && Math.abs(c) > 0.55 * max ? { label: { color: "#ffffff" } } : {}) })),
+  );
   const n = stageNames.length;
   const option = {
     textStyle,
     animation: false,
-    grid: { left: 8, right: 16, top: 8, bottom: 80, containLabel: true },
+    grid: { left: 8, right: 16, top: 28, bottom: 96, containLabel: true },
     tooltip: { formatter: (p: { value: [number, number, number | "-"] }) => `${stageNames[p.value[0]]} → ${stageNames[p.value[1]]}: ${p.value[2] === "-" ? "no difference" : fmt(p.value[2])}` },
-    xAxis: { type: "category", data: stageNames, name: "From stage (at t)", nameLocation: "middle", nameGap: 56, nameTextStyle: axisName, axisLabel: { rotate: n > 6 ? 30 : 0, width: 90, overflow: "truncate" } },
-    yAxis: { type: "category", data: stageNames, inverse: true, name: "To stage (at t+1)", nameTextStyle: axisName },
-    visualMap: { min: -(max || 1), max: max || 1, calculable: false, orient: "horizontal", left: "center", bottom: 0, inRange: { color: [CLAY, PAPER, SPRUCE] }, textStyle, formatter: fmt },
+    xAxis: { type: "category", data: stageNames, name: "From stage (at t)", nameLocation: "middle", nameGap: 28, nameTextStyle: axisName, axisLabel: { rotate: n > 6 ? 30 : 0, width: 90, overflow: "truncate" } },
+    yAxis: { type: "category", data: stageNames, inverse: true, name: "To stage (at t+1)", nameLocation: "start", nameTextStyle: axisName },
+    visualMap: {
+      min: -(max || 1),
+      max: max || 1,
+      calculable: false,
+      orient: "horizontal",
+      left: "center",
+      bottom: 0,
+      text: ["raises λ", "lowers λ"],
+      inRange: { color: [CLAY, PAPER, SPRUCE] },
+      textStyle,
+    },
     series: [{ type: "heatmap", data, label: { show: n <= 10, formatter: (p: { value: [number, number, number | "-"] }) => (p.value[2] === "-" ? "" : formatNumber(p.value[2], 2)), color: INK, fontSize: 11 } }],
   };
-  return <Chart option={option} height={Math.min(640, 140 + 44 * n)} ariaLabel={ariaLabel} />;
+  return <Chart option={option} height={Math.min(660, 170 + 44 * n)} ariaLabel={ariaLabel} />;
 }
 
 /** Contributions as horizontal bars (negative left in clay, positive right in spruce). */
