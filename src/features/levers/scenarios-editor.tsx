@@ -225,6 +225,7 @@ function AddChangeForm({ doc, scenario, onAdd }: { doc: LifeCycle; scenario: Sce
   const [amount, setAmount] = useState("");
   const [achievable, setAchievable] = useState("");
   const [problem, setProblem] = useState<{ field: "amount" | "achievable" | "target"; message: string } | null>(null);
+  const problemId = useId();
 
   if (options.length === 0) return <p className="text-sm text-ink/80">Add vital rates or arrows first: a change moves one of them.</p>;
 
@@ -262,19 +263,35 @@ function AddChangeForm({ doc, scenario, onAdd }: { doc: LifeCycle; scenario: Sce
           </option>
         ))}
       </SelectField>
-      <TextField label="Amount" inputMode="decimal" value={amount} onChange={(e) => setAmount(e.target.value)} fieldClassName="w-32" error={problem?.field === "amount" ? problem.message : undefined} />
+      <TextField
+        label="Amount"
+        inputMode="decimal"
+        value={amount}
+        onChange={(e) => setAmount(e.target.value)}
+        fieldClassName="w-32"
+        className={problem?.field === "amount" ? "border-2 border-brick" : ""}
+        aria-invalid={problem?.field === "amount" ? true : undefined}
+        aria-describedby={problem?.field === "amount" ? problemId : undefined}
+      />
       <TextField
         label="Largest achievable (optional)"
         inputMode="decimal"
         value={achievable}
         onChange={(e) => setAchievable(e.target.value)}
         fieldClassName="w-52"
-        error={problem?.field === "achievable" ? problem.message : undefined}
+        className={problem?.field === "achievable" ? "border-2 border-brick" : ""}
+        aria-invalid={problem?.field === "achievable" ? true : undefined}
+        aria-describedby={problem?.field === "achievable" ? problemId : undefined}
       />
       <Button type="submit" variant="secondary">
         Add change
       </Button>
-      {problem?.field === "target" && <p className="w-full text-sm font-bold text-brick">{problem.message}</p>}
+      {problem && (
+        <p id={problemId} role="alert" className="w-full text-sm font-bold text-brick">
+          <span aria-hidden="true">✕ </span>
+          {problem.message}
+        </p>
+      )}
     </form>
   );
 }

@@ -81,5 +81,9 @@ export function summariseSettings(settings: unknown, doc: LifeCycle): string {
   }
   if (s.demographic === true) parts.push("demographic stochasticity");
   if (typeof s.ceiling === "number") parts.push(`ceiling ${formatCount(s.ceiling)}`);
+  if (typeof s.scenarioId === "string") {
+    const scenario = doc.scenarios?.find((x) => x.id === s.scenarioId);
+    parts.unshift(`Levers scenario “${scenario?.name ?? "no longer in the life cycle"}”`);
+  }
   return parts.join(" · ");
 }
