@@ -7,7 +7,7 @@ import { buildMatrices, lifeCycleFromMatrix, LifeCycleSchema, rateScale, type Li
 import { checkScenarioRules, type Scenario } from "../../shared/lifecycle/scenarios";
 import { applyScenario, breakEvenTable, compareScenarios, LeverError, leverModel, lifeCycleLtre, rankLevers } from "../../shared/levers";
 import { threeStageLifeCycle } from "../factories/life-cycles";
-import { LOGGERHEAD } from "./demography-fixtures";
+import { KILLER_WHALE, LOGGERHEAD } from "./demography-fixtures";
 
 const lambdaOfDoc = (doc: LifeCycle) => {
   const m = buildMatrices(doc);
@@ -80,6 +80,26 @@ describe("lever ranking", () => {
       changed[i]![j] = row.increase.to;
       expect(Math.abs(row.increase.deltaLambda! - (analyzeMatrix({ A: changed }).lambda - base))).toBeLessThan(1e-12);
     }
+  });
+
+  it("is exact on a reducible matrix too (killer whale, post-reproductive females lead nowhere)", () => {
+    // Brault & Caswell 1993 matrix (METHODS.md §1): reducible, v₄ = 0.
+    const whale = lifeCycleFromMatrix(KILLER_WHALE.A, KILLER_WHALE.stages, { reproductionRows: [0] });
+    const r = rankLevers(leverModel(whale), { relativeChange: 0.1 });
+    const base = analyzeMatrix({ A: KILLER_WHALE.A }).lambda;
+    expect(r.rows).toHaveLength(8);
+    for (const row of r.rows) {
+      const i = whale.stages.findIndex((s) => s.id === row.to);
+      const j = whale.stages.findIndex((s) => s.id === row.from);
+      for (const step of [row.increase, row.decrease]) {
+        const changed = KILLER_WHALE.A.map((x) => [...x]);
+        changed[i]![j] = step.to;
+        expect(Math.abs(step.deltaLambda! - (analyzeMatrix({ A: changed }).lambda - base))).toBeLessThan(1e-12);
+      }
+    }
+    // The post-reproductive stage's survival does not move λ (its reproductive value is 0).
+    const post = r.rows.find((x) => x.from === x.to && x.label.startsWith(KILLER_WHALE.stages[3]!))!;
+    expect(Math.abs(post.increase.deltaLambda!)).toBeLessThan(1e-14); // 0 up to rounding in λ (≈ 1)
   });
 
   it("a 10 % rise of a probability near 1 stops at the bound and says so", () => {
