@@ -4,7 +4,7 @@
 // from an SE), stasis s_k·(1 − g_k), growth s_k·g_k, reproduction s_0·m_k
 // (a pre-breeding census: newborns survive their first year before they are
 // counted), and correlations between neighbouring classes' survival.
-import type { LifeCycle } from "../shared/lifecycle/index";
+import { LIFE_CYCLE_SCHEMA_VERSION, LifeCycleSchema, type LifeCycle } from "../shared/lifecycle/index";
 
 export function sizeClassLifeCycle(stages = 20, options: { correlated?: boolean } = {}): LifeCycle {
   const ids = Array.from({ length: stages }, (_, k) => `st_${k}`);
@@ -23,8 +23,8 @@ export function sizeClassLifeCycle(stages = 20, options: { correlated?: boolean 
     if (k >= stages / 2) transitions.push({ id: `tr_re${k}`, from: ids[k]!, to: ids[0]!, kind: "reproduction", rate: `s0 * m${k}` });
   }
   const correlations = options.correlated ? Array.from({ length: stages - 1 }, (_, k) => ({ a: `vr_s${k}`, b: `vr_s${k + 1}`, r: 0.3 })) : undefined;
-  return {
-    stagewright: 1,
+  return LifeCycleSchema.parse({
+    stagewright: LIFE_CYCLE_SCHEMA_VERSION,
     name: `Size classes (${stages})`,
     census: "pre-breeding",
     timeStepUnit: "year",
@@ -32,5 +32,5 @@ export function sizeClassLifeCycle(stages = 20, options: { correlated?: boolean 
     rates,
     transitions,
     ...(correlations ? { correlations } : {}),
-  } as LifeCycle;
+  });
 }

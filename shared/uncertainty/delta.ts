@@ -10,9 +10,9 @@
  * λ: a Monte Carlo Run checks that when the SEs are large.
  */
 import { normalCdf } from "../risk/distributions";
-import type { CompiledLifeCycle } from "../lifecycle/index";
-import type { DrawEvaluator, DrawResult } from "./evaluate";
-import { normalQuantile, type UncertaintyIssue, type UncertaintyModel, type UncertaintySource } from "./laws";
+import { buildMatrices, compileLifeCycle, type CompiledLifeCycle, type LifeCycle } from "../lifecycle/index";
+import { drawEvaluator, ratesUsedByFormulas, type DrawEvaluator, type DrawResult } from "./evaluate";
+import { normalQuantile, uncertaintyModel, type UncertaintyIssue, type UncertaintyModel, type UncertaintySource } from "./laws";
 
 export const DELTA_LEVEL = 0.95;
 
@@ -172,4 +172,29 @@ export function deltaMethod(input: DeltaInput): DeltaMethodResult {
     issues: model.issues,
     reason: null,
   };
+}
+
+/**
+ * The delta method for a whole document, or null when no rate gives any
+ * uncertainty (nothing to show). `lambdaSensitivity` (∂λ/∂x per rate, in
+ * document order) saves recomputing it when the analysis has it. Throws
+ * LifeCycleFormulaError when the formulas cannot be computed.
+ */
+export function lifeCycleDeltaMethod(doc: LifeCycle, lambdaSensitivity?: readonly number[]): DeltaMethodResult | null {
+  const model = uncertaintyModel(doc);
+  if (model.rates.length === 0 && model.issues.length === 0) return null;
+  const compiled = compileLifeCycle(doc);
+  const used = ratesUsedByFormulas(doc);
+  const evaluator = drawEvaluator(compiled, buildMatrices(doc).entries, doc.transitions.map((t) => t.rate), []);
+  let sensitivity = lambdaSensitivity;
+  if (sensitivity === undefined) {
+    const at = evaluator.evaluate(compiled.baseValues);
+    const n = evaluator.n;
+    let vw = 0;
+    for (let i = 0; i < n; i++) vw += at.v[i]! * at.w[i]!;
+    const S = Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (at.v[i]! * at.w[j]!) / vw));
+    sensitivity = compiled.vitalRateSensitivities(S, at.lambda).map((r) => r.sensitivity);
+  }
+  const usedRateNames = used.map((i) => compiled.rateNames[i]!);
+  return deltaMethod({ compiled, evaluator, model, lambdaSensitivity: sensitivity, usedRateNames });
 }

@@ -20,10 +20,11 @@ export {
   type UncertaintyModel,
 } from "./laws";
 export { drawEvaluator, ratesUsedByFormulas, type DrawEvaluator, type DrawResult } from "./evaluate";
-export { deltaMethod, DELTA_LEVEL, type DeltaEstimate, type DeltaContribution, type DeltaMethodResult, type DeltaInput } from "./delta";
+export { deltaMethod, lifeCycleDeltaMethod, DELTA_LEVEL, type DeltaEstimate, type DeltaContribution, type DeltaMethodResult, type DeltaInput } from "./delta";
 export {
   monteCarloSetup,
   monteCarloChunk,
+  rateSampler,
   mergeMonteCarlo,
   UncertaintyModelError,
   MONTE_CARLO_LEVEL,

@@ -19,10 +19,9 @@
  * the rate's name and the document path of the field.
  */
 import { choleskyLower } from "../demography/index";
+import { rateScale, type RateScale } from "../lifecycle/index";
 import { normalCdf, normalDensity, rateLaw, type RateLaw } from "../risk/distributions";
 
-/** The scales a rate lives on (as schema.ts's `rateScale`). */
-export type RateScale = "probability" | "non-negative" | "unbounded";
 
 /** The fields of a vital rate this file reads (structural, so v1 and v2 documents both fit). */
 export interface UncertainRateFields {
@@ -44,6 +43,8 @@ export interface UncertaintyDocument {
   readonly rates: readonly UncertainRateFields[];
   readonly correlations?: readonly { readonly a: string; readonly b: string; readonly r: number }[] | undefined;
 }
+
+export type { RateScale };
 
 /** A law for sampling: the Risk laws plus the normal (unbounded rates). */
 export type SamplingLaw = RateLaw | { readonly kind: "normal"; readonly mean: number; readonly sd: number };
@@ -100,11 +101,9 @@ export function normalQuantile(p: number): number {
   return z;
 }
 
-/** The scale of a rate: as given, or inferred from its value (0–1 probability, above 1 non-negative, below 0 unbounded). */
+/** The scale of a rate: as given, or inferred from its value (schema.ts's rateScale). */
 export function inferredScale(rate: Pick<UncertainRateFields, "value" | "scale">): RateScale {
-  if (rate.scale) return rate.scale;
-  if (rate.value < 0) return "unbounded";
-  return rate.value <= 1 ? "probability" : "non-negative";
+  return rateScale(rate);
 }
 
 const fmt = (x: number) => (Math.abs(x) >= 1e-3 && Math.abs(x) < 1e6 ? String(Number(x.toPrecision(4))) : x.toExponential(3));

@@ -10,7 +10,7 @@
  * Draws are split into chunks; chunk k uses the random stream (seed, k), so
  * a chunk's result depends only on the run's input and k.
  */
-import { createRandom } from "../demography/index";
+import { createRandom, type Random } from "../demography/index";
 import { buildMatrices, compileLifeCycle, LifeCycleFormulaError, type CompiledLifeCycle, type LifeCycle } from "../lifecycle/index";
 import { normalScoreMap } from "../risk/distributions";
 import { drawEvaluator, ratesUsedByFormulas, type DrawEvaluator, type DrawResult } from "./evaluate";
@@ -89,15 +89,32 @@ export interface MonteCarloPartial {
   rateRanks: RankCounts;
 }
 
-/** Draws `count` samples with random stream (seed, chunkIndex). */
-export function monteCarloChunk(setup: MonteCarloSetup, seed: number, chunkIndex: number, count: number): MonteCarloPartial {
-  const { compiled, evaluator, model, maps } = setup;
-  const rng = createRandom(seed, chunkIndex);
+/** Draws every uncertain rate into `values` (document order; the other rates are left as they are). */
+export function rateSampler(setup: Pick<MonteCarloSetup, "model" | "maps">): (rng: Random, values: Float64Array) => void {
+  const { model, maps } = setup;
   const m = model.rates.length;
   const L = model.cholesky;
   const eps = new Float64Array(m);
-  const values = Float64Array.from(compiled.baseValues);
   const slots = Int32Array.from(model.rates, (r) => r.index);
+  return (rng, values) => {
+    for (let i = 0; i < m; i++) eps[i] = rng.normal();
+    for (let i = 0; i < m; i++) {
+      let z = eps[i]!;
+      if (L) {
+        z = 0;
+        for (let k = 0; k <= i; k++) z += L[i * m + k]! * eps[k]!;
+      }
+      values[slots[i]!] = maps[i]!(z);
+    }
+  };
+}
+
+/** Draws `count` samples with random stream (seed, chunkIndex). */
+export function monteCarloChunk(setup: MonteCarloSetup, seed: number, chunkIndex: number, count: number): MonteCarloPartial {
+  const { compiled, evaluator, model } = setup;
+  const rng = createRandom(seed, chunkIndex);
+  const values = Float64Array.from(compiled.baseValues);
+  const sample = rateSampler(setup);
   const n = evaluator.n;
   const lambda = new Float64Array(count);
   const r0 = new Float64Array(count);
@@ -112,15 +129,7 @@ export function monteCarloChunk(setup: MonteCarloSetup, seed: number, chunkIndex
   const rateRanks = emptyRankCounts(evaluator.leverRates.length);
   let out: DrawResult | undefined;
   for (let d = 0; d < count; d++) {
-    for (let i = 0; i < m; i++) eps[i] = rng.normal();
-    for (let i = 0; i < m; i++) {
-      let z = eps[i]!;
-      if (L) {
-        z = 0;
-        for (let k = 0; k <= i; k++) z += L[i * m + k]! * eps[k]!;
-      }
-      values[slots[i]!] = maps[i]!(z);
-    }
+    sample(rng, values);
     try {
       out = evaluator.evaluate(values, out);
     } catch (err) {
