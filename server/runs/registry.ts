@@ -1,7 +1,9 @@
 import type { RunKinds } from "./kinds";
 import { riskRun } from "./risk";
+import { uncertaintyRun } from "./uncertainty";
 
 /** Every kind of Run the server can start and the workers can compute. */
 export const RUN_KINDS: RunKinds = {
   risk: riskRun as RunKinds[string],
+  uncertainty: uncertaintyRun as RunKinds[string],
 };

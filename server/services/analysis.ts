@@ -1,5 +1,6 @@
 import { analyzeMatrix, MatrixInputError, type MatrixAnalysis } from "../../shared/demography";
-import { buildMatrices, vitalRateSensitivities, type LifeCycle } from "../../shared/lifecycle";
+import { buildMatrices, LifeCycleFormulaError, vitalRateSensitivities, type LifeCycle } from "../../shared/lifecycle";
+import { lifeCycleDeltaMethod } from "../../shared/uncertainty";
 import type { AnalyzeMatrixRequest, LifeCycleAnalysis } from "../../shared/schemas/life-cycles";
 import { HttpError } from "../http/errors";
 
@@ -50,5 +51,16 @@ export function analyzeLifeCycle(
     timeStepUnit: doc.timeStepUnit,
     matrices: { A: m.A, U: m.U, F: m.F },
     vitalRates,
+    uncertainty: analysis.sensitivity ? deltaOrNull(doc, vitalRates.map((r) => r.sensitivity)) : null,
   };
+}
+
+/** The delta method, or null when a formula cannot be evaluated near the rates' values (the analysis above stands). */
+function deltaOrNull(doc: LifeCycle, sensitivity: number[]) {
+  try {
+    return lifeCycleDeltaMethod(doc, sensitivity);
+  } catch (err) {
+    if (err instanceof LifeCycleFormulaError) return null;
+    throw err;
+  }
 }

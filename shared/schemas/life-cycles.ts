@@ -1,6 +1,7 @@
 import { z } from "zod";
 import type { MatrixAnalysis } from "../demography";
 import { LifeCycleSchema, MAX_STAGES, type LifeCycle, type VitalRateSensitivity } from "../lifecycle";
+import type { DeltaMethodResult } from "../uncertainty";
 
 export const MAX_LIFE_CYCLE_NAME_LENGTH = 200;
 
@@ -150,4 +151,6 @@ export interface LifeCycleAnalysis extends MatrixAnalysis {
   matrices: { A: number[][]; U: number[][]; F: number[][] };
   /** ∂λ/∂x and (x/λ)∂λ/∂x for each named vital rate, by the chain rule through the formulas. */
   vitalRates: VitalRateSensitivity[];
+  /** Delta-method intervals from the rates' SEs, CIs, counts or distributions; null when no rate gives any. */
+  uncertainty: DeltaMethodResult | null;
 }
