@@ -12,9 +12,12 @@ import { CommitInput } from "../../components/ui/commit-input";
 import { ConfirmDialog } from "../../components/ui/dialog";
 import type { EditorPanelProps } from "../../lib/editor-types";
 import { formatNumber, formatWithUncertainty } from "../../lib/number-format";
+import { uncertaintyModel } from "../../../shared/uncertainty";
 import { CiEditor } from "./ci-editor";
+import { CorrelationsEditor } from "./correlations-editor";
 import { arrowsUsingRates, freshRateName, parseNumberInput, probabilityWarnings, rateNameError } from "./rate-checks";
 import { removeRateKeepingValues, renameRate } from "./rename-rate";
+import { MoreUncertainty } from "./uncertainty-fields";
 
 type RateUpdate = Partial<Omit<VitalRate, "id">>;
 
@@ -45,6 +48,8 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection, comme
   const warnings = useMemo(() => probabilityWarnings(doc), [doc]);
   const stageName = useMemo(() => new Map(doc.stages.map((s) => [s.id, s.name])), [doc.stages]);
   const unknownNames = useMemo(() => unknownRateNames(doc), [doc]);
+  const uncertainty = useMemo(() => uncertaintyModel(doc), [doc]);
+  const issuesOf = (index: number) => uncertainty.issues.filter((i) => i.path[0] === "rates" && i.path[1] === index);
   const [status, setStatus] = useState("");
   const [removing, setRemoving] = useState<VitalRate | null>(null);
   const [openNotes, setOpenNotes] = useState<ReadonlySet<string>>(new Set());
@@ -139,7 +144,7 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection, comme
                 <th scope="col" className="px-2 py-2">Name</th>
                 <th scope="col" className="px-2 py-2">Value</th>
                 <th scope="col" className="px-2 py-2">
-                  Uncertainty <span className="font-normal text-ink/75">(SE and/or CI)</span>
+                  Uncertainty <span className="font-normal text-ink/75">(SE, CI, counts or a distribution)</span>
                 </th>
                 <th scope="col" className="px-2 py-2">Unit</th>
                 <th scope="col" className="px-2 py-2">Source</th>
@@ -152,7 +157,7 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection, comme
               </tr>
             </thead>
             <tbody>
-              {doc.rates.map((rate) => {
+              {doc.rates.map((rate, rateIndex) => {
                 const arrows = usage.get(rate.name) ?? [];
                 const notesOpen = openNotes.has(rate.id);
                 const toggleNotes = () =>
@@ -224,9 +229,16 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection, comme
                     </td>
                     <td className="min-w-[17.5rem] px-2 py-2">
                       {readOnly ? (
-                        <span className="tabular-nums">
-                          {rate.se === undefined && rate.ci === undefined ? <span className="text-ink/70">not given</span> : formatWithUncertainty(rate.value, rate)}
-                        </span>
+                        <div className="space-y-1">
+                          <span className="tabular-nums">
+                            {rate.se === undefined && rate.ci === undefined && rate.counts === undefined && rate.distribution === undefined ? (
+                              <span className="text-ink/70">not given</span>
+                            ) : (
+                              (rate.se !== undefined || rate.ci !== undefined) && formatWithUncertainty(rate.value, rate)
+                            )}
+                          </span>
+                          <MoreUncertainty rate={rate} issues={issuesOf(rateIndex)} readOnly onChange={() => {}} />
+                        </div>
                       ) : (
                         <div className="space-y-1.5">
                           <label className="flex items-start gap-2">
@@ -250,6 +262,7 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection, comme
                             ci={rate.ci}
                             onCommit={(ci) => set(rate, { ci }, ci === undefined ? `Remove the CI of ${rate.name}` : `Set the CI of ${rate.name}`)}
                           />
+                          <MoreUncertainty rate={rate} issues={issuesOf(rateIndex)} readOnly={false} onChange={(update, label) => set(rate, update, label)} />
                         </div>
                       )}
                     </td>
@@ -318,6 +331,8 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection, comme
           </table>
         </div>
       )}
+
+      {doc.rates.length > 1 && <CorrelationsEditor document={doc} readOnly={readOnly} issues={uncertainty.issues} onChange={onChange} />}
 
       <ConfirmDialog
         open={removing !== null}

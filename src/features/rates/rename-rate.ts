@@ -87,5 +87,12 @@ export function removeRateKeepingValues(doc: LifeCycle, rateId: string): RateRen
     // A formula that was just the rate becomes a plain number.
     return { ...t, rate: formula.trim() === literal ? rate.value : formula };
   });
-  return { document: { ...doc, rates: doc.rates.filter((r) => r.id !== rateId), transitions }, changedArrows };
+  const next: LifeCycle = { ...doc, rates: doc.rates.filter((r) => r.id !== rateId), transitions };
+  // Its correlations go with it.
+  if (doc.correlations) {
+    const kept = doc.correlations.filter((c) => c.a !== rateId && c.b !== rateId);
+    if (kept.length > 0) next.correlations = kept;
+    else delete next.correlations;
+  }
+  return { document: next, changedArrows };
 }
