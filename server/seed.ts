@@ -14,6 +14,7 @@ import { recordEvent } from "./services/audit";
 import { takeSnapshot } from "./services/snapshots";
 import { seedScenarioRun, withDemoScenarios } from "./seed/levers";
 import { seedReview } from "./seed/review";
+import { seedDemoUncertaintyRun, withDemoUncertainty } from "./seed/uncertainty";
 
 /** Invented people, species and places: the demo must never pass for real data. */
 export const DEMO_PASSWORD = "stagewright-demo";
@@ -52,7 +53,7 @@ function demoLifeCycle(site: DemoSite): LifeCycle {
     source,
     ...(unit ? { unit } : {}),
   });
-  return LifeCycleSchema.parse({
+  return LifeCycleSchema.parse(withDemoUncertainty({
     stagewright: LIFE_CYCLE_SCHEMA_VERSION,
     name: `${site.name} newts`,
     census: "pre-breeding",
@@ -78,7 +79,7 @@ function demoLifeCycle(site: DemoSite): LifeCycle {
       { id: "tr_adult_adult", from: "st_adult", to: "st_adult", kind: "stasis", rate: "s_a" },
       { id: "tr_adult_eft", from: "st_adult", to: "st_eft", kind: "reproduction", rate: "m * 0.5 * s_e", notes: "Female eggs (sex ratio 1:1) surviving to the first census" },
     ],
-  });
+  }));
 }
 
 /** Creates the demo accounts and Study once; running it again changes nothing. */
@@ -157,6 +158,7 @@ if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.me
   const { created, studyId } = await seedDemo(db);
   console.log(created ? "Demo Study created." : "Demo Study already present.");
   if (await seedDemoRun(db, jobs, studyId)) console.log("Demo Risk run queued: the worker computes it in the background.");
+  if (await seedDemoUncertaintyRun(db, jobs, studyId)) console.log("Demo Monte Carlo run queued.");
   await jobs.stop();
   await pool.end();
 }

@@ -8,12 +8,15 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/r
 import { useEffect } from "react";
 import type { RiskSettings, RiskSettingsInput } from "../../shared/schemas/risk";
 import type { RiskRunResult, RunRecord, RunStatus, RunSummary } from "../../shared/schemas/runs";
+import type { UncertaintyRunResult, UncertaintySettingsInput } from "../../shared/schemas/uncertainty";
 import { api, segment } from "./client";
 import { queryKeys } from "./keys";
 
 export type { RiskRunResult, RunRecord, RunStatus, RunSummary };
 
 export type RiskRun = RunRecord<RiskRunResult>;
+export type UncertaintyRun = RunRecord<UncertaintyRunResult>;
+export type { UncertaintyRunResult };
 
 /** How often a queued or running Run is asked for its progress. */
 export const RUN_POLL_MS = 500;
@@ -82,6 +85,21 @@ export function useStartRiskRun(lifeCycleId: string) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (settings: RiskSettings | RiskSettingsInput) => startRiskRun(lifeCycleId, settings),
+    onSuccess: (run) => {
+      queryClient.setQueryData(queryKeys.runs.detail(run.id), run);
+      return queryClient.invalidateQueries({ queryKey: queryKeys.lifeCycles.runs(lifeCycleId) });
+    },
+  });
+}
+
+/** Starts a Monte Carlo uncertainty Run on the saved life cycle; the rates' uncertainty comes from the life cycle (400 with `lifeCycle.…` paths when unusable). */
+export const startUncertaintyRun = (lifeCycleId: string, settings: UncertaintySettingsInput) =>
+  api.post<UncertaintyRun>(runsPath(lifeCycleId), { kind: "uncertainty", settings });
+
+export function useStartUncertaintyRun(lifeCycleId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (settings: UncertaintySettingsInput) => startUncertaintyRun(lifeCycleId, settings),
     onSuccess: (run) => {
       queryClient.setQueryData(queryKeys.runs.detail(run.id), run);
       return queryClient.invalidateQueries({ queryKey: queryKeys.lifeCycles.runs(lifeCycleId) });

@@ -33,6 +33,7 @@ import type { ReviewPanelProps } from "../features/review";
 import type { RiskPanelProps } from "../features/risk";
 import { useComments } from "../api/comments";
 import type { CommentAnchor } from "../../shared/schemas/review";
+import type { UncertaintyPanelProps } from "../features/uncertainty";
 import type { EditorPanelProps, Selection } from "../lib/editor-types";
 import { ROLE_LABELS } from "../lib/roles";
 import { paths } from "./paths";
@@ -44,17 +45,19 @@ const MatrixPanel = lazy(() => import("../features/matrix").then((m) => ({ defau
 const ResultsPanel = lazy(() => import("../features/results").then((m) => ({ default: m.ResultsPanel })));
 const LeversPanel = lazy(() => import("../features/levers").then((m) => ({ default: m.LeversPanel })));
 const RiskPanel = lazy(() => import("../features/risk").then((m) => ({ default: m.RiskPanel })));
+const UncertaintyPanel = lazy(() => import("../features/uncertainty").then((m) => ({ default: m.UncertaintyPanel })));
 const HistoryPanel = lazy(() => import("../features/history").then((m) => ({ default: m.HistoryPanel })));
 const ExportPanel = lazy(() => import("../features/export").then((m) => ({ default: m.ExportPanel })));
 const ReviewPanel = lazy(() => import("../features/review").then((m) => ({ default: m.ReviewPanel })));
 
-type TabId = "diagram" | "rates" | "matrix" | "results" | "levers" | "risk" | "review" | "history" | "export";
+type TabId = "diagram" | "rates" | "matrix" | "results" | "uncertainty" | "levers" | "risk" | "review" | "history" | "export";
 
 interface TabContext {
   /** The panel props for one tab (each tab gets its own `onSelect`). */
   panel: (tab: TabId) => EditorPanelProps;
   levers: LeversPanelProps;
   risk: RiskPanelProps;
+  uncertainty: UncertaintyPanelProps;
   history: HistoryPanelProps;
   exports: ExportPanelProps;
   review: ReviewPanelProps;
@@ -65,6 +68,7 @@ const TABS: readonly { id: TabId; label: string; render: (c: TabContext) => Reac
   { id: "rates", label: "Rates", render: (c) => <RatesPanel {...c.panel("rates")} /> },
   { id: "matrix", label: "Matrix", render: (c) => <MatrixPanel {...c.panel("matrix")} /> },
   { id: "results", label: "Results", render: (c) => <ResultsPanel {...c.panel("results")} /> },
+  { id: "uncertainty", label: "Uncertainty", render: (c) => <UncertaintyPanel {...c.uncertainty} /> },
   { id: "levers", label: "Levers", render: (c) => <LeversPanel {...c.levers} /> },
   { id: "risk", label: "Risk", render: (c) => <RiskPanel {...c.risk} /> },
   { id: "review", label: "Review", render: (c) => <ReviewPanel {...c.review} /> },
@@ -150,6 +154,7 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
     panel: panelProps,
     levers: { ...panelProps("levers"), lifeCycleId: initial.id, studyId: study.id, revision: editor.present.revision, saveStatus: editor.save.status },
     risk: { lifeCycleId: initial.id, studyId: study.id, document, analysis, readOnly, saveStatus: editor.save.status, version: editor.version },
+    uncertainty: { lifeCycleId: initial.id, document, analysis, readOnly, saveStatus: editor.save.status, version: editor.version },
     history: { lifeCycleId: initial.id, version: editor.version, readOnly, onRestored: editor.reset, compareWith: search.get("compare") },
     exports: { document, analysis },
     review: {

@@ -20,6 +20,7 @@ import { Figure } from "./figure";
 import { ProjectionSection } from "./projection-section";
 import { SensitivityTable } from "./sensitivity-table";
 import { censusNote, lambdaVerdict, steps as stepsWord } from "../../lib/verdict";
+import { LambdaInterval, UncertaintySection } from "./uncertainty-section";
 import { VitalRatesTable } from "./vital-rates-table";
 
 const StageBars = lazy(() => import("./charts").then((m) => ({ default: m.StageBars })));
@@ -141,6 +142,7 @@ function Analysis({ data, document: doc, stale, onSelect }: { data: LifeCycleAna
           {stale && <Badge tone="warning">not current</Badge>}
           {!data.isSound && <Badge tone="warning">see the checks below</Badge>}
         </div>
+        <LambdaInterval uncertainty={data.uncertainty ?? null} />
         {verdict.detail && <p className="mt-2">{verdict.detail}</p>}
         <p className="mt-2 text-sm text-ink/80">
           λ is the factor by which numbers multiply each {unit} once the mix of stages has settled: above 1 the population grows, below 1 it declines. It assumes the rates stay as they
@@ -148,6 +150,10 @@ function Analysis({ data, document: doc, stale, onSelect }: { data: LifeCycleAna
         </p>
         <p className="mt-1 text-sm text-ink/80">{censusNote(data.census)}</p>
       </div>
+
+      <Section title="How sure: uncertainty from the rates" help="Intervals for the headline results from the uncertainty each vital rate carries (its SE, CI, counts or distribution, and the correlations between rates).">
+        <UncertaintySection uncertainty={data.uncertainty ?? null} units={units} />
+      </Section>
 
       <Section title="Checks of the model" help="Plain-language checks of the matrix. A stage named in a check is a button that shows it in the diagram.">
         <DiagnosticsList diagnostics={data.diagnostics} stageIds={data.stageIds} stageNames={names} onSelect={onSelect} />

@@ -1,0 +1,1 @@
+export { UncertaintyPanel, type UncertaintyPanelProps } from "./uncertainty-panel";
