@@ -43,40 +43,62 @@ function residual(a: Float64Array, n: number, x: Float64Array, lambda: number, t
  * matrix); null when the iteration does not reach a verified Perron pair.
  */
 export function refinePerron(a: Float64Array, n: number, w0: ArrayLike<number>, v0: ArrayLike<number>): PerronRefinement | null {
-  const w = Float64Array.from(w0);
-  const v = Float64Array.from(v0);
+  return perronRefiner(n)(a, w0, v0);
+}
+
+/** refinePerron for many matrices of one size, reusing its work space (the result's vectors are overwritten by the next call). */
+export function perronRefiner(n: number): (a: Float64Array, w0: ArrayLike<number>, v0: ArrayLike<number>) => PerronRefinement | null {
+  const w = new Float64Array(n);
+  const v = new Float64Array(n);
   const shifted = new Float64Array(n * n);
   const aw = new Float64Array(n);
   const piv = new Int32Array(n);
   const work = new Float64Array(n);
-  for (let step = 0; step < MAX_STEPS; step++) {
-    let vaw = 0;
-    let vw = 0;
+  const wOut = new Float64Array(n);
+  const vOut = new Float64Array(n);
+  return (a, w0, v0) => {
     for (let i = 0; i < n; i++) {
-      let s = 0;
-      for (let k = 0; k < n; k++) s += a[i * n + k]! * w[k]!;
-      aw[i] = s;
+      w[i] = w0[i]!;
+      v[i] = v0[i]!;
     }
-    for (let i = 0; i < n; i++) {
-      vaw += v[i]! * aw[i]!;
-      vw += v[i]! * w[i]!;
+    for (let step = 0; step < MAX_STEPS; step++) {
+      let vaw = 0;
+      let vw = 0;
+      for (let i = 0; i < n; i++) {
+        let s = 0;
+        for (let k = 0; k < n; k++) s += a[i * n + k]! * w[k]!;
+        aw[i] = s;
+      }
+      for (let i = 0; i < n; i++) {
+        vaw += v[i]! * aw[i]!;
+        vw += v[i]! * w[i]!;
+      }
+      if (!(vw > 0)) return null;
+      const sigma = vaw / vw;
+      if (!(sigma > 0) || !Number.isFinite(sigma)) return null;
+      if (residualOf(aw, w, sigma, n) <= TOLERANCE && residual(a, n, v, sigma, true) <= TOLERANCE) return finish(sigma, w, v, n, wOut, vOut);
+      shifted.set(a);
+      for (let i = 0; i < n; i++) shifted[i * n + i] = shifted[i * n + i]! - sigma;
+      factor(shifted, n, piv);
+      solve(shifted, n, piv, w, work);
+      solveTransposed(shifted, n, piv, v, work);
+      normalise(w);
+      normalise(v);
+      if (w.some((x) => !Number.isFinite(x)) || v.some((x) => !Number.isFinite(x))) return null;
     }
-    if (!(vw > 0)) return null;
-    const sigma = vaw / vw;
-    if (!(sigma > 0) || !Number.isFinite(sigma)) return null;
-    if (residual(a, n, w, sigma, false) <= TOLERANCE && residual(a, n, v, sigma, true) <= TOLERANCE) {
-      return finish(sigma, w, v, n);
-    }
-    shifted.set(a);
-    for (let i = 0; i < n; i++) shifted[i * n + i] = shifted[i * n + i]! - sigma;
-    factor(shifted, n, piv);
-    solve(shifted, n, piv, w);
-    solveTransposed(shifted, n, piv, v, work);
-    normalise(w);
-    normalise(v);
-    if (w.some((x) => !Number.isFinite(x)) || v.some((x) => !Number.isFinite(x))) return null;
+    return null;
+  };
+}
+
+/** ‖Aw − σw‖₁/(σ‖w‖₁) from Aw already computed. */
+function residualOf(aw: Float64Array, w: Float64Array, sigma: number, n: number): number {
+  let r = 0;
+  let norm = 0;
+  for (let i = 0; i < n; i++) {
+    r += Math.abs(aw[i]! - sigma * w[i]!);
+    norm += Math.abs(w[i]!);
   }
-  return null;
+  return r / (Math.abs(sigma) * norm);
 }
 
 /**
@@ -123,9 +145,9 @@ function factor(lu: Float64Array, n: number, piv: Int32Array): void {
   }
 }
 
-/** x ← A⁻¹x with the factors. */
-function solve(lu: Float64Array, n: number, piv: Int32Array, x: Float64Array): void {
-  const b = Float64Array.from(x);
+/** x ← A⁻¹x with the factors (b: work space of n). */
+function solve(lu: Float64Array, n: number, piv: Int32Array, x: Float64Array, b: Float64Array): void {
+  b.set(x);
   for (let i = 0; i < n; i++) x[i] = b[piv[i]!]!;
   for (let i = 1; i < n; i++) {
     let s = x[i]!;
@@ -168,14 +190,12 @@ function normalise(x: Float64Array): void {
   for (let i = 0; i < x.length; i++) x[i] = x[i]! * c;
 }
 
-function finish(lambda: number, w: Float64Array, v: Float64Array, n: number): PerronRefinement | null {
+function finish(lambda: number, w: Float64Array, v: Float64Array, n: number, wOut: Float64Array, vOut: Float64Array): PerronRefinement | null {
   for (let i = 0; i < n; i++) if (!(w[i]! > 0) || !(v[i]! > 0)) return null; // not the Perron pair
   let sw = 0;
   for (let i = 0; i < n; i++) sw += w[i]!;
-  const wOut = new Float64Array(n);
   for (let i = 0; i < n; i++) wOut[i] = w[i]! / sw;
   const v0 = v[0]!;
-  const vOut = new Float64Array(n);
   for (let i = 0; i < n; i++) vOut[i] = v[i]! / v0;
   return { lambda, w: wOut, v: vOut };
 }

@@ -13,7 +13,7 @@
  */
 import { dominantEigenDense, spectralRadiusDense } from "../demography/eigen";
 import { graphStructure } from "../demography/graph";
-import { refinePerron } from "../demography/perron-refine";
+import { perronRefiner } from "../demography/perron-refine";
 import { toDense } from "../demography/matrix";
 import { luFactor, luSolve } from "../demography/lu";
 import { bindExpr, derivativeTree, FormulaEvaluationError, type BoundFormula } from "../lifecycle/formula";
@@ -74,6 +74,7 @@ export function drawEvaluator(
   const baseEigen = n > 1 && graphStructure(baseDense, n).irreducible ? dominantEigenDense(baseDense, n, { second: false }) : null;
   const warm = baseEigen !== null && baseEigen.converged && baseEigen.w.every((x) => x > 0) && baseEigen.v.every((x) => x > 0) ? baseEigen : null;
   const patternCells = Int32Array.from(cells, ([i, j]) => i * n + j);
+  const refine = perronRefiner(n);
   const repro = Uint8Array.from(entries, (e) => (e.kind === "reproduction" ? 1 : 0));
   // ∂a_t/∂x_k for every arrow t and tracked rate k its formula uses, bound once.
   const slotOfName = new Map(compiled.rateNames.map((name, i) => [name, i]));
@@ -161,7 +162,7 @@ export function drawEvaluator(
             break;
           }
         }
-        if (samePattern) eig = refinePerron(a, n, warm.w, warm.v);
+        if (samePattern) eig = refine(a, warm.w, warm.v);
       }
       eig ??= dominantEigenDense(a, n, { second: false });
       const lambda = eig.lambda;

@@ -13,8 +13,6 @@ export interface RankCounts {
   skipped: number;
   first: number[];
   topThree: number[];
-  /** Sum of 1-based ranks. */
-  rankSum: number[];
 }
 
 export interface LeverStability {
@@ -22,17 +20,13 @@ export interface LeverStability {
   rankFirst: number;
   /** Share of ranked draws in which it is among the top three. */
   topThree: number;
-  /** Mean rank (1 = largest |elasticity|); NaN when no draw was ranked. */
-  meanRank: number;
 }
 
 export function emptyRankCounts(items: number): RankCounts {
-  return { draws: 0, skipped: 0, first: new Array<number>(items).fill(0), topThree: new Array<number>(items).fill(0), rankSum: new Array<number>(items).fill(0) };
+  return { draws: 0, skipped: 0, first: new Array<number>(items).fill(0), topThree: new Array<number>(items).fill(0) };
 }
 
-const order: number[] = [];
-
-/** Rank one draw's elasticities (mutates `counts`). */
+/** Rank one draw's elasticities by |e| (mutates `counts`): the top three by selection, and every lever's rank for the mean. */
 export function recordRanks(counts: RankCounts, elasticity: ArrayLike<number>): void {
   const k = elasticity.length;
   if (k === 0) return;
@@ -42,16 +36,27 @@ export function recordRanks(counts: RankCounts, elasticity: ArrayLike<number>): 
       return;
     }
   }
-  order.length = k;
-  for (let i = 0; i < k; i++) order[i] = i;
-  order.sort((a, b) => Math.abs(elasticity[b]!) - Math.abs(elasticity[a]!) || a - b);
   counts.draws++;
-  for (let r = 0; r < k; r++) {
-    const item = order[r]!;
-    counts.rankSum[item]! += r + 1;
-    if (r < 3) counts.topThree[item]!++;
+  // Top three in one pass (ties keep document order: only a strictly larger value moves ahead).
+  let a = -1;
+  let b = -1;
+  let c = -1;
+  const size = (i: number) => (i < 0 ? -1 : Math.abs(elasticity[i]!));
+  for (let i = 0; i < k; i++) {
+    const x = Math.abs(elasticity[i]!);
+    if (x > size(a)) {
+      c = b;
+      b = a;
+      a = i;
+    } else if (x > size(b)) {
+      c = b;
+      b = i;
+    } else if (x > size(c)) c = i;
   }
-  counts.first[order[0]!]!++;
+  counts.first[a]!++;
+  counts.topThree[a]!++;
+  if (b >= 0) counts.topThree[b]!++;
+  if (c >= 0) counts.topThree[c]!++;
 }
 
 export function mergeRankCounts(parts: readonly RankCounts[]): RankCounts {
@@ -63,7 +68,6 @@ export function mergeRankCounts(parts: readonly RankCounts[]): RankCounts {
     for (let i = 0; i < items; i++) {
       out.first[i]! += p.first[i]!;
       out.topThree[i]! += p.topThree[i]!;
-      out.rankSum[i]! += p.rankSum[i]!;
     }
   }
   return out;
@@ -74,7 +78,6 @@ export function rankStability(counts: RankCounts): LeverStability[] {
   return counts.first.map((_, i) => ({
     rankFirst: d > 0 ? counts.first[i]! / d : NaN,
     topThree: d > 0 ? counts.topThree[i]! / d : NaN,
-    meanRank: d > 0 ? counts.rankSum[i]! / d : NaN,
   }));
 }
 
@@ -97,6 +100,6 @@ export function rankStabilityLookup(result: RankStabilitySource): {
 } {
   const rates = new Map(result.rateLevers.map((l) => [l.rateId, l]));
   const entries = new Map(result.entryLevers.map((l) => [`${l.from}→${l.to}`, l]));
-  const pick = (l: LeverStability | undefined) => (l ? { rankFirst: l.rankFirst, topThree: l.topThree, meanRank: l.meanRank } : undefined);
+  const pick = (l: LeverStability | undefined) => (l ? { rankFirst: l.rankFirst, topThree: l.topThree } : undefined);
   return { draws: result.draws, rate: (id) => pick(rates.get(id)), entry: (from, to) => pick(entries.get(`${from}→${to}`)) };
 }

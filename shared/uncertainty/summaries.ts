@@ -25,8 +25,8 @@ export interface ItemHistogram {
   sumSquares: number;
   min: number;
   max: number;
-  /** bin → count; bin 0 is zero, ±k is sign · k-th log bin. */
-  bins: Record<string, number>;
+  /** Counts of consecutive bins from bin `lo` (bin 0 is zero, ±k is sign · k-th log bin). */
+  bins: { lo: number; counts: number[] };
 }
 
 export interface ItemSummary {
@@ -40,7 +40,7 @@ export interface ItemSummary {
 }
 
 export function emptyHistogram(): ItemHistogram {
-  return { count: 0, undefinedCount: 0, sum: 0, sumSquares: 0, min: Infinity, max: -Infinity, bins: {} };
+  return { count: 0, undefinedCount: 0, sum: 0, sumSquares: 0, min: Infinity, max: -Infinity, bins: { lo: 0, counts: [] } };
 }
 
 const BIN_LIMIT = (LOG_MAX - LOG_MIN) * LOG_BINS_PER_DECADE;
@@ -68,7 +68,11 @@ export function addToHistogram(h: ItemHistogram, x: number): void {
   Object.assign(h, mergeHistograms([h, acc.toJSON()]));
 }
 
-/** Fast accumulation of many draws of one quantity; `toJSON` gives the mergeable histogram. */
+/**
+ * Fast accumulation of many draws of one quantity: counts in a window of
+ * consecutive bins that grows as needed (one quantity's draws fill a narrow
+ * band of bins); `toJSON` gives the mergeable histogram.
+ */
 export class HistogramAccumulator {
   private count = 0;
   private undefinedCount = 0;
@@ -76,7 +80,8 @@ export class HistogramAccumulator {
   private sumSquares = 0;
   private min = Infinity;
   private max = -Infinity;
-  private readonly bins = new Map<number, number>();
+  private lo = 0;
+  private counts = new Float64Array(0);
 
   add(x: number): void {
     if (!Number.isFinite(x)) {
@@ -89,18 +94,45 @@ export class HistogramAccumulator {
     if (x < this.min) this.min = x;
     if (x > this.max) this.max = x;
     const b = binOf(x);
-    this.bins.set(b, (this.bins.get(b) ?? 0) + 1);
+    let i = b - this.lo;
+    if (i < 0 || i >= this.counts.length) i = this.grow(b);
+    this.counts[i] = this.counts[i]! + 1;
+  }
+
+  /** Widens the window to hold bin b (with room to spare); returns b's index. */
+  private grow(b: number): number {
+    if (this.counts.length === 0) {
+      this.lo = b - 64;
+      this.counts = new Float64Array(129);
+      return 64;
+    }
+    const hi = this.lo + this.counts.length - 1;
+    const newLo = Math.min(this.lo, b - 64);
+    const newHi = Math.max(hi, b + 64);
+    const next = new Float64Array(newHi - newLo + 1);
+    next.set(this.counts, this.lo - newLo);
+    this.counts = next;
+    this.lo = newLo;
+    return b - newLo;
   }
 
   toJSON(): ItemHistogram {
-    const bins: Record<string, number> = {};
-    for (const [k, c] of this.bins) bins[String(k)] = c;
+    // Trim empty bins at both ends.
+    let a = 0;
+    let b = this.counts.length - 1;
+    while (a <= b && this.counts[a] === 0) a++;
+    while (b >= a && this.counts[b] === 0) b--;
+    const bins = { lo: this.lo + a, counts: Array.from(this.counts.subarray(a, b + 1)) };
     return { count: this.count, undefinedCount: this.undefinedCount, sum: this.sum, sumSquares: this.sumSquares, min: this.min, max: this.max, bins };
   }
 }
 
 export function mergeHistograms(parts: readonly ItemHistogram[]): ItemHistogram {
   const out = emptyHistogram();
+  const filled = parts.filter((p) => p.bins.counts.length > 0);
+  const lo = Math.min(...filled.map((p) => p.bins.lo));
+  const hi = Math.max(...filled.map((p) => p.bins.lo + p.bins.counts.length - 1));
+  const counts = filled.length > 0 ? new Array<number>(hi - lo + 1).fill(0) : [];
   for (const p of parts) {
     out.count += p.count;
     out.undefinedCount += p.undefinedCount;
@@ -108,15 +140,14 @@ export function mergeHistograms(parts: readonly ItemHistogram[]): ItemHistogram 
     out.sumSquares += p.sumSquares;
     out.min = Math.min(out.min, p.min ?? Infinity);
     out.max = Math.max(out.max, p.max ?? -Infinity);
-    for (const [k, c] of Object.entries(p.bins)) out.bins[k] = (out.bins[k] ?? 0) + c;
+    const off = p.bins.lo - lo;
+    p.bins.counts.forEach((c, i) => (counts[off + i] = counts[off + i]! + c));
   }
+  out.bins = { lo: filled.length > 0 ? lo : 0, counts };
   return out;
 }
 
-const sortedBins = (h: ItemHistogram) =>
-  Object.entries(h.bins)
-    .map(([k, c]) => [Number(k), c] as const)
-    .sort((a, b) => a[0] - b[0]);
+const sortedBins = (h: ItemHistogram): (readonly [number, number])[] => h.bins.counts.flatMap((c, i) => (c > 0 ? [[h.bins.lo + i, c] as const] : []));
 
 /** The q-quantile (0 ≤ q ≤ 1) from a histogram, interpolated in its bin; NaN when empty. */
 export function histogramQuantile(h: ItemHistogram, q: number, bins: readonly (readonly [number, number])[] = sortedBins(h)): number {
