@@ -1,6 +1,9 @@
 import { sql } from "drizzle-orm";
 import {
   bigserial,
+  customType,
+  doublePrecision,
+  smallint,
   index,
   integer,
   jsonb,
@@ -200,6 +203,8 @@ export const runs = pgTable(
       .notNull()
       .references(() => studies.id, { onDelete: "cascade" }),
     lifeCycleId: uuid("life_cycle_id").references(() => lifeCycles.id, { onDelete: "cascade" }),
+    /** Runs on Field data (the λ bootstrap) name their dataset instead of a life cycle. */
+    datasetId: uuid("dataset_id").references(() => datasets.id, { onDelete: "cascade" }),
     kind: varchar("kind", { length: 40 }).notNull(),
     /** Everything the run needs, frozen at start (documents included), so results can be reproduced. */
     input: jsonb("input").notNull(),
@@ -215,7 +220,7 @@ export const runs = pgTable(
     startedAt: timestamp("started_at", { withTimezone: true }),
     finishedAt: timestamp("finished_at", { withTimezone: true }),
   },
-  (t) => [index("runs_life_cycle_idx").on(t.lifeCycleId, t.createdAt)],
+  (t) => [index("runs_life_cycle_idx").on(t.lifeCycleId, t.createdAt), index("runs_dataset_idx").on(t.datasetId, t.createdAt)],
 );
 
 /** One row per chunk: a finished chunk keeps its partial result and is never computed again. */
@@ -328,4 +333,71 @@ export const notifications = pgTable(
     sentAt: timestamp("sent_at", { withTimezone: true }),
   },
   (t) => [index("notifications_unsent_idx").on(t.userId, t.sentAt)],
+);
+
+const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => "bytea" });
+
+/** An uploaded Field-data file: the raw bytes as sent, who sent it, and how its columns were read. */
+export const datasets = pgTable(
+  "datasets",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "cascade" }),
+    name: varchar("name", { length: 120 }).notNull(),
+    /** "counts" | "stage-fates". */
+    kind: varchar("kind", { length: 20 }).notNull(),
+    fileName: varchar("file_name", { length: 255 }).notNull(),
+    fileBytes: integer("file_bytes").notNull(),
+    fileContent: bytea("file_content").notNull(),
+    rowCount: integer("row_count").notNull(),
+    /** Column mapping and parse options (delimiter, decimal comma, dead value, stage order) as used. */
+    mapping: jsonb("mapping").notNull(),
+    options: jsonb("options").notNull(),
+    stages: jsonb("stages").$type<string[]>().notNull(),
+    sites: jsonb("sites").$type<string[]>().notNull(),
+    firstYear: doublePrecision("first_year"),
+    lastYear: doublePrecision("last_year"),
+    uploadedBy: uuid("uploaded_by").references(() => users.id, { onDelete: "set null" }),
+    uploadedAt: createdAt(),
+  },
+  (t) => [index("datasets_study_idx").on(t.studyId, t.uploadedAt)],
+);
+
+/** One census of a counts dataset (line = line of the uploaded file). */
+export const countRows = pgTable(
+  "count_rows",
+  {
+    datasetId: uuid("dataset_id")
+      .notNull()
+      .references(() => datasets.id, { onDelete: "cascade" }),
+    line: integer("line").notNull(),
+    site: text("site").notNull(),
+    /** Census time in years (a date becomes year + day/365). */
+    time: doublePrecision("time").notNull(),
+    label: text("label").notNull(),
+    count: doublePrecision("count").notNull(),
+    /** Per-stage counts by stage name, when mapped. */
+    stageCounts: jsonb("stage_counts").$type<Record<string, number | null>>(),
+  },
+  (t) => [primaryKey({ columns: [t.datasetId, t.line] })],
+);
+
+/** One individual at one census of a stage-fate dataset; stage and fate index the dataset's `stages` (fate −1 dead, −2 unknown). */
+export const fateRows = pgTable(
+  "fate_rows",
+  {
+    datasetId: uuid("dataset_id")
+      .notNull()
+      .references(() => datasets.id, { onDelete: "cascade" }),
+    line: integer("line").notNull(),
+    site: text("site").notNull(),
+    individual: text("individual").notNull(),
+    year: doublePrecision("year").notNull(),
+    stage: smallint("stage").notNull(),
+    fate: smallint("fate").notNull(),
+    offspring: doublePrecision("offspring"),
+  },
+  (t) => [primaryKey({ columns: [t.datasetId, t.line] })],
 );

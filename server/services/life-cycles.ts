@@ -71,7 +71,7 @@ export async function getLifeCycle(db: DbOrTx, id: string): Promise<LifeCycleRec
   return { ...summary({ ...r.lc, updatedByName: r.updatedByName }), document: upgradeLifeCycle(r.lc.document) };
 }
 
-async function insertLifeCycle(tx: DbOrTx, studyId: string, userId: string, document: LifeCycle, how: string): Promise<LifeCycleRecord> {
+export async function insertLifeCycle(tx: DbOrTx, studyId: string, userId: string, document: LifeCycle, how: string): Promise<LifeCycleRecord> {
   const [row] = await tx
     .insert(lifeCycles)
     .values({ studyId, name: document.name, document, schemaVersion: LIFE_CYCLE_SCHEMA_VERSION, createdBy: userId, updatedBy: userId })
