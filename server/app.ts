@@ -16,6 +16,7 @@ import { accountRoutes } from "./routes/account";
 import { authRoutes } from "./routes/auth";
 import { devMailRoutes } from "./routes/dev-mail";
 import { leverRoutes } from "./routes/levers";
+import { fieldDataRoutes } from "./routes/field-data";
 import { lifeCycleRoutes } from "./routes/life-cycles";
 import { reviewRoutes } from "./routes/review";
 import { runRoutes } from "./routes/runs";
@@ -51,6 +52,7 @@ export function createApiRouter(deps: AppDeps): Router {
   runRoutes(r, deps);
   reviewRoutes(r, deps);
   leverRoutes(r, deps);
+  fieldDataRoutes(r, deps);
   if (deps.config.mailOutbox) devMailRoutes(r, deps);
   return r;
 }

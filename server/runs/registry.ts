@@ -1,4 +1,5 @@
 import type { RunKinds } from "./kinds";
+import { bootstrapRun } from "./bootstrap";
 import { riskRun } from "./risk";
 import { uncertaintyRun } from "./uncertainty";
 
@@ -6,4 +7,5 @@ import { uncertaintyRun } from "./uncertainty";
 export const RUN_KINDS: RunKinds = {
   risk: riskRun as RunKinds[string],
   uncertainty: uncertaintyRun as RunKinds[string],
+  bootstrap: bootstrapRun as RunKinds[string],
 };

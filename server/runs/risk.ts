@@ -67,6 +67,7 @@ export const riskRun: RunKind<RiskInput, ChunkResult, RiskRunResult> = {
       if (err instanceof ZodError) throw badSettings(zodFields(err));
       throw err;
     }
+    if (!target.lifeCycleId) throw new HttpError(400, "A Risk run works on a life cycle.");
     const [row] = await db.select().from(lifeCycles).where(and(eq(lifeCycles.id, target.lifeCycleId), isNull(lifeCycles.deletedAt)));
     if (!row) throw new HttpError(404, "No such life cycle.");
     const saved = upgradeLifeCycle(row.document);

@@ -1,10 +1,10 @@
 import { and, desc, eq, sql } from "drizzle-orm";
-import type { RunCreate, RunRecord, RunSummary } from "../../shared/schemas/runs";
+import type { RunRecord, RunSummary } from "../../shared/schemas/runs";
 import type { Db } from "../db/client";
 import { runChunks, runs, users } from "../db/schema";
 import { HttpError, notFound } from "../http/errors";
 import { recordEvent } from "../services/audit";
-import type { RunKinds } from "./kinds";
+import type { RunKinds, RunTarget } from "./kinds";
 import type { JobSender } from "./queue";
 
 type Row = typeof runs.$inferSelect & { createdByName: string | null };
@@ -13,6 +13,7 @@ const iso = (d: Date | null) => (d ? d.toISOString() : null);
 const summary = (r: Row): RunSummary => ({
   id: r.id,
   lifeCycleId: r.lifeCycleId,
+  datasetId: r.datasetId,
   kind: r.kind,
   status: r.status,
   progress: r.chunksTotal > 0 ? r.chunksDone / r.chunksTotal : 0,
@@ -39,6 +40,11 @@ export async function listRuns(db: Db, lifeCycleId: string): Promise<RunSummary[
   return rows.map((r) => summary({ ...r.run, createdByName: r.createdByName }));
 }
 
+export async function listDatasetRuns(db: Db, datasetId: string): Promise<RunSummary[]> {
+  const rows = await selectRows(db).where(eq(runs.datasetId, datasetId)).orderBy(desc(runs.createdAt)).limit(100);
+  return rows.map((r) => summary({ ...r.run, createdByName: r.createdByName }));
+}
+
 export async function getRun(db: Db, runId: string): Promise<RunRecord> {
   const [r] = await selectRows(db).where(eq(runs.id, runId));
   if (!r) throw notFound("No such run.");
@@ -52,9 +58,9 @@ export async function getRun(db: Db, runId: string): Promise<RunRecord> {
 export async function createRun(
   db: Db,
   deps: { kinds: RunKinds; jobs: JobSender },
-  target: { studyId: string; lifeCycleId: string },
+  target: RunTarget,
   userId: string,
-  request: RunCreate,
+  request: { kind: string; settings?: unknown },
 ): Promise<RunRecord> {
   const kind = deps.kinds[request.kind];
   if (!kind) throw new HttpError(400, `Unknown run kind “${request.kind}”.`, "bad_request", [{ path: "kind", message: "Unknown run kind." }]);
@@ -62,10 +68,10 @@ export async function createRun(
   const runId = await db.transaction(async (tx) => {
     const [row] = await tx
       .insert(runs)
-      .values({ studyId: target.studyId, lifeCycleId: target.lifeCycleId, kind: request.kind, input: input as object, settings: settings as object, chunksTotal: chunks, createdBy: userId })
+      .values({ studyId: target.studyId, lifeCycleId: target.lifeCycleId, datasetId: target.datasetId ?? null, kind: request.kind, input: input as object, settings: settings as object, chunksTotal: chunks, createdBy: userId })
       .returning({ id: runs.id });
     await tx.insert(runChunks).values(Array.from({ length: chunks }, (_, chunkIndex) => ({ runId: row!.id, chunkIndex })));
-    await recordEvent(tx, { studyId: target.studyId, actorId: userId, action: "run.created", summary: `started a ${request.kind} run (${chunks} chunks)`, details: { runId: row!.id, lifeCycleId: target.lifeCycleId } });
+    await recordEvent(tx, { studyId: target.studyId, actorId: userId, action: "run.created", summary: `started a ${request.kind} run (${chunks} chunks)`, details: { runId: row!.id, lifeCycleId: target.lifeCycleId, datasetId: target.datasetId ?? null } });
     return row!.id;
   });
   try {

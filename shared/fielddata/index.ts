@@ -50,3 +50,4 @@ export {
   type CountsColumns,
   type FateColumns,
 } from "./records";
+export { lifeCycleFromEstimate, type LifeCycleSource } from "./life-cycle";

@@ -105,14 +105,40 @@ export const StartLifeCycleSchema = z.strictObject({
 export type StartLifeCycle = z.input<typeof StartLifeCycleSchema>;
 
 export const BootstrapSettingsSchema = z.strictObject({
-  datasetId: z.uuid({ error: "The dataset id is a uuid." }),
   analysis: FateAnalysisSettingsSchema.default({ census: "pre-breeding", offspringSurvival: 1, method: "wilson" }),
   resamples: z.number({ error: "The number of resamples is a whole number." }).int("The number of resamples is a whole number.").min(2000, "Use at least 2,000 resamples.").max(100_000, "At most 100,000 resamples.").default(2000),
   seed: z.number().int().min(0).max(2 ** 31 - 1).optional(),
 });
 export type BootstrapRunSettings = z.infer<typeof BootstrapSettingsSchema>;
 
+/** Start a Run on a dataset (the λ bootstrap); `settings` is checked by BootstrapSettingsSchema. */
+export const RunOnDatasetSchema = z.strictObject({
+  kind: z.literal("bootstrap", { error: 'Runs on Field data are of kind "bootstrap".' }),
+  settings: z.unknown(),
+});
+
 // --------------------------------------------------------------- answers
+
+/** What a finished λ bootstrap Run holds. */
+export interface BootstrapRunResult {
+  datasetId: string;
+  datasetName: string;
+  stages: string[];
+  /** Records of each stage resampled (all records of the stage, fates known or not). */
+  recordsPerStage: number[];
+  settings: FateAnalysisSettings;
+  seed: number;
+  resamples: number;
+  lambda: number;
+  mean: number;
+  sd: number;
+  bias: number;
+  level: number;
+  lower: number;
+  upper: number;
+  shareBelowOne: number;
+  histogram: { from: number; to: number; count: number }[];
+}
 
 export interface ValidationProblem {
   /** Line of the file (1 = first line, the header). */
@@ -141,6 +167,8 @@ export interface UploadPreview {
   suggested: { counts: Partial<CountsMapping>; "stage-fates": Partial<FatesMapping> };
   /** Rough number of lines in the file. */
   lines: number;
+  /** When the chosen delimiter looks wrong. */
+  warning?: string;
 }
 
 export interface DatasetSummary {

@@ -2,7 +2,7 @@ import { z } from "zod";
 import type { StochasticResult } from "../demography";
 import type { CriterionEAssessment } from "../risk";
 
-export const RUN_KINDS = ["risk", "uncertainty"] as const;
+export const RUN_KINDS = ["risk", "uncertainty", "bootstrap"] as const;
 export const RunKindSchema = z.enum(RUN_KINDS, { error: `The run kind is one of: ${RUN_KINDS.join(", ")}.` });
 export type RunKindName = z.infer<typeof RunKindSchema>;
 
@@ -18,6 +18,8 @@ export type RunStatus = "queued" | "running" | "succeeded" | "failed" | "cancell
 export interface RunSummary {
   id: string;
   lifeCycleId: string | null;
+  /** Runs on Field data (the λ bootstrap) name their dataset. */
+  datasetId: string | null;
   kind: string;
   status: RunStatus;
   /** Share of chunks finished, 0–1. */
