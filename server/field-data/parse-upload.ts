@@ -216,7 +216,7 @@ export async function checkUpload(buffer: Buffer, request: UploadRequest): Promi
     if (!p) throw err;
     early.push(p);
   }
-  if (!header) early.push({ line: 1, column: null, problem: "The file is empty." });
+  if (!header && early.length === 0) early.push({ line: 1, column: null, problem: "The file is empty." });
   else if (rows === 0 && early.length === 0) early.push({ line: 2, column: null, problem: "The file has a header but no rows of data." });
 
   if (request.kind === "counts") {
