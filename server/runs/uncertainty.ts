@@ -42,6 +42,7 @@ export const uncertaintyRun: RunKind<UncertaintyInput, MonteCarloPartial, Uncert
       }
       throw err;
     }
+    if (!target.lifeCycleId) throw new HttpError(400, "An uncertainty run works on a life cycle.");
     const [row] = await db.select().from(lifeCycles).where(and(eq(lifeCycles.id, target.lifeCycleId), isNull(lifeCycles.deletedAt)));
     if (!row) throw new HttpError(404, "No such life cycle.");
     const document = upgradeLifeCycle(row.document);

@@ -4,10 +4,11 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Role } from "../../shared/schemas/studies";
 import { createApiRouter } from "../../server/app";
 import { sha256 } from "../../server/auth/secrets";
-import { comments, invitations, lifeCycles, memberships, runs, snapshots } from "../../server/db/schema";
+import { comments, countRows, datasets, fateRows, invitations, lifeCycles, memberships, runs, snapshots } from "../../server/db/schema";
 import { unsubscribeToken } from "../../server/services/notifications";
 import { createApiToken } from "../../server/services/api-tokens";
 import { threeStageLifeCycle } from "../factories/life-cycles";
+import { COUNTS_CSV, countsFields, FATES_CSV, fatesFields, uploadCsv } from "../helpers/field-data";
 import { browserAgent, signUpAgent, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
 
 /**
@@ -33,7 +34,7 @@ interface Entry {
   access: Access;
   /** The route changes who the agent is signed in as: run it on a fresh agent of the persona. */
   ownAgent?: true;
-  request: (ctx: Ctx) => Promise<{ path: string; body?: object }>;
+  request: (ctx: Ctx) => Promise<{ path: string; body?: object; upload?: { csv: string; fields: Record<string, string | object> } }>;
 }
 
 let seq = 0;
@@ -82,6 +83,19 @@ async function freshComment(ctx: Ctx): Promise<string> {
 async function resolvedComment(ctx: Ctx): Promise<string> {
   const id = await freshComment(ctx);
   await ctx.server.db.update(comments).set({ resolvedAt: new Date() }).where(eq(comments.id, id));
+  return id;
+}
+async function freshDataset(ctx: Ctx, kind: "counts" | "stage-fates" = "stage-fates"): Promise<string> {
+  const [row] = await ctx.server.db
+    .insert(datasets)
+    .values({ studyId: ctx.studyId, name: "D", kind, fileName: "d.csv", fileBytes: 1, fileContent: Buffer.from("x"), rowCount: 3, mapping: {}, options: {}, stages: kind === "counts" ? [] : ["J", "A"], sites: [] })
+    .returning();
+  const id = row!.id;
+  if (kind === "counts") {
+    await ctx.server.db.insert(countRows).values([10, 12, 9].map((count, k) => ({ datasetId: id, line: k + 2, site: "", time: 2000 + k, label: String(2000 + k), count })));
+  } else {
+    await ctx.server.db.insert(fateRows).values([[0, 1, 0], [1, 1, 2], [1, -1, 1]].map(([stage, fate, offspring], k) => ({ datasetId: id, line: k + 2, site: "", individual: `i${k}`, year: 2000, stage: stage!, fate: fate!, offspring: offspring! })));
+  }
   return id;
 }
 const riskSettings = (lifeCycleId: string) => ({ environment: { kind: "matrices", lifeCycleIds: [lifeCycleId], weights: [1] }, initial: [10, 5, 2], horizon: 5, replicates: 10, threshold: { value: 1 } });
@@ -214,6 +228,19 @@ const MATRIX: Record<string, Entry> = {
     access: "public",
     request: async (c) => ({ path: "/notifications/unsubscribe", body: { token: unsubscribeToken(c.server.config.sessionSecret, (await signUpAgent(c.server)).user.id) } }),
   },
+  "GET /studies/:studyId/datasets": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}/datasets` }) },
+  "POST /studies/:studyId/datasets/preview": { access: "editor", request: async (c) => ({ path: `/studies/${c.studyId}/datasets/preview`, upload: { csv: COUNTS_CSV, fields: {} } }) },
+  "POST /studies/:studyId/datasets/check": { access: "editor", request: async (c) => ({ path: `/studies/${c.studyId}/datasets/check`, upload: { csv: COUNTS_CSV, fields: countsFields() } }) },
+  "POST /studies/:studyId/datasets": { access: "editor", request: async (c) => ({ path: `/studies/${c.studyId}/datasets`, upload: { csv: FATES_CSV, fields: fatesFields() } }) },
+  "GET /datasets/:datasetId": { access: "viewer", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}` }) },
+  "PATCH /datasets/:datasetId": { access: "editor", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}`, body: { name: "Renamed" } }) },
+  "DELETE /datasets/:datasetId": { access: "editor", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}` }) },
+  "GET /datasets/:datasetId/file": { access: "viewer", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}/file` }) },
+  "GET /datasets/:datasetId/counts-analysis": { access: "viewer", request: async (c) => ({ path: `/datasets/${await freshDataset(c, "counts")}/counts-analysis?threshold=2` }) },
+  "GET /datasets/:datasetId/fate-analysis": { access: "viewer", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}/fate-analysis` }) },
+  "POST /datasets/:datasetId/life-cycles": { access: "editor", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}/life-cycles`, body: { name: "From data" } }) },
+  "GET /datasets/:datasetId/runs": { access: "viewer", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}/runs` }) },
+  "POST /datasets/:datasetId/runs": { access: "editor", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}/runs`, body: { kind: "bootstrap", settings: { resamples: 2000 } } }) },
   "POST /analyze": { access: "user", request: async () => ({ path: "/analyze", body: { matrix: [[0.5, 1.2], [0.4, 0.8]] } }) },
   "POST /levers": { access: "user", request: async () => ({ path: "/levers", body: { document: threeStageLifeCycle(), breakEven: false } }) },
   "POST /ltre": { access: "user", request: async () => ({ path: "/ltre", body: { reference: threeStageLifeCycle(), comparison: threeStageLifeCycle() } }) },
@@ -281,10 +308,12 @@ describe("authorisation matrix", () => {
         // Sign-out and sign-in change who the agent is: give those routes a fresh agent of the same persona.
         const held = persona === "anonymous" ? { agent: await browserAgent(server), userId: null } : entry.ownAgent ? await freshAgent(persona) : agents.get(persona)!;
         const ctx: Ctx = { server, studyId, persona, agent: held.agent, userId: held.userId };
-        const { path, body } = await entry.request(ctx);
+        const { path, body, upload } = await entry.request(ctx);
         const url = `/api/v1${path}`;
         const m = method.toLowerCase() as "get" | "post" | "patch" | "delete" | "put";
-        const res = m === "get" ? await held.agent.get(url) : m === "delete" ? await held.agent.delete(url) : await held.agent[m](url, body);
+        const res = upload
+          ? await uploadCsv(held.agent, url, { content: upload.csv }, upload.fields)
+          : m === "get" ? await held.agent.get(url) : m === "delete" ? await held.agent.delete(url) : await held.agent[m](url, body);
         const want = expected(entry.access, persona);
         const ok = want === "allowed" ? ![401, 403].includes(res.status) && res.status < 500 && (res.status !== 404 || route.includes("made-up")) : res.status === want;
         if (!ok) outcomes.push(`${persona}: got ${res.status} ${JSON.stringify(res.body)}, wanted ${want}`);

@@ -1,6 +1,6 @@
 import { count, eq } from "drizzle-orm";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
-import { auditEvents, countRows, datasets, fateRows, memberships } from "../../server/db/schema";
+import { auditEvents, countRows, datasets, fateRows, memberships, runs } from "../../server/db/schema";
 import { COUNTS_CSV, countsFields, FATES_CSV, fatesFields, uploadCsv } from "../helpers/field-data";
 import { signUpAgent, startTestServer, type TestServer } from "../helpers/server";
 import { startWorker } from "../helpers/worker";
@@ -222,5 +222,31 @@ describe("stage fates", () => {
     expect(run.result.lower).toBeLessThan(1.4);
     expect(run.result.upper).toBeGreaterThan(1.4);
     expect((await viewer.get(`/api/v1/datasets/${id}/runs`)).body.map((r: { id: string }) => r.id)).toEqual([start.body.id]);
+  });
+});
+
+describe("demo Field data", () => {
+  it("adds both datasets through the upload path once, with a queued bootstrap Run", async () => {
+    const { seedDemo } = await import("../../server/seed");
+    const { seedFieldData, DEMO_COUNTS_NAME, DEMO_FATES_NAME } = await import("../../server/seed/field-data");
+    const { createJobSender } = await import("../../server/runs/queue");
+    const { studyId } = await seedDemo(server.db);
+    const jobs = createJobSender(server.databaseUrl);
+    try {
+      expect(await seedFieldData(server.db, jobs, studyId)).toBe(true);
+      expect(await seedFieldData(server.db, jobs, studyId)).toBe(false);
+    } finally {
+      await jobs.stop();
+    }
+    const list = await server.db.select().from(datasets).where(eq(datasets.studyId, studyId));
+    const counts = list.find((d) => d.name === DEMO_COUNTS_NAME)!;
+    const fates = list.find((d) => d.name === DEMO_FATES_NAME)!;
+    expect(counts.sites).toEqual(["Brannock Fen", "Kessel Marsh"]);
+    expect([counts.firstYear, counts.lastYear]).toEqual([2012, 2026]);
+    expect(fates.stages).toEqual(["Eft", "Subadult", "Adult"]);
+    const individuals = await server.db.selectDistinct({ id: fateRows.individual }).from(fateRows).where(eq(fateRows.datasetId, fates.id));
+    expect(individuals.length).toBe(212 + 143);
+    const runRows = await server.db.select().from(runs).where(eq(runs.datasetId, fates.id));
+    expect(runRows.map((r) => r.kind)).toEqual(["bootstrap"]);
   });
 });
