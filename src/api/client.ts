@@ -93,7 +93,8 @@ type Method = "GET" | "POST" | "PATCH" | "PUT" | "DELETE";
 
 async function request<T>(method: Method, path: string, body?: unknown, signal?: AbortSignal, isRetry = false): Promise<T> {
   const headers: Record<string, string> = { Accept: "application/json" };
-  if (body !== undefined) headers["Content-Type"] = "application/json";
+  const isForm = body instanceof FormData;
+  if (body !== undefined && !isForm) headers["Content-Type"] = "application/json";
   if (method !== "GET") {
     const token = await csrfToken();
     if (token) headers[CSRF_HEADER] = token;
@@ -104,7 +105,7 @@ async function request<T>(method: Method, path: string, body?: unknown, signal?:
     response = await fetch(`${API_BASE}${path}`, {
       method,
       headers,
-      body: body === undefined ? undefined : JSON.stringify(body),
+      body: body === undefined ? undefined : isForm ? body : JSON.stringify(body),
       credentials: "same-origin",
       signal,
     });
@@ -136,4 +137,6 @@ export const api = {
   patch: <T>(path: string, body: unknown) => request<T>("PATCH", path, body),
   put: <T>(path: string, body: unknown) => request<T>("PUT", path, body),
   delete: (path: string) => request<void>("DELETE", path),
+  /** multipart/form-data (file uploads); the browser sets the boundary. */
+  postForm: <T>(path: string, form: FormData) => request<T>("POST", path, form),
 };

@@ -25,6 +25,16 @@ export const queryKeys = {
     activityLog: (studyId: string, filters: Record<string, string>) => [...queryKeys.studies.activity(studyId), "log", filters] as const,
     lifeCycles: (studyId: string) => [...queryKeys.studies.detail(studyId), "life-cycles"] as const,
     deletedLifeCycles: (studyId: string) => [...queryKeys.studies.detail(studyId), "deleted-life-cycles"] as const,
+    datasets: (studyId: string) => [...queryKeys.studies.detail(studyId), "datasets"] as const,
+  },
+
+  /** Field-data datasets and their analyses; invalidating `detail(id)` refreshes everything of one dataset. */
+  datasets: {
+    all: ["datasets"] as const,
+    detail: (datasetId: string) => [...queryKeys.datasets.all, datasetId] as const,
+    countsAnalysis: (datasetId: string, query: object) => [...queryKeys.datasets.detail(datasetId), "counts", query] as const,
+    fateAnalysis: (datasetId: string, settings: object) => [...queryKeys.datasets.detail(datasetId), "fates", settings] as const,
+    runs: (datasetId: string) => [...queryKeys.datasets.detail(datasetId), "runs"] as const,
   },
 
   /** One life cycle and what hangs off it; invalidating `detail(id)` refreshes its analysis and snapshots too. */

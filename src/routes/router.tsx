@@ -4,6 +4,7 @@
  * before it shows and redirect where the session says so.
  */
 import { type LoaderFunctionArgs, type RouteObject, createBrowserRouter, redirect } from "react-router";
+import { datasetQueryOptions } from "../api/field-data";
 import { lifeCycleQueryOptions, lifeCyclesQueryOptions } from "../api/life-cycles";
 import { membersQueryOptions } from "../api/members";
 import { queryClient } from "../api/query-client";
@@ -129,6 +130,28 @@ export const routes: RouteObject[] = [
                   return null;
                 },
                 lazy: () => import("./life-cycle-editor").then((m) => ({ Component: m.LifeCycleEditorPage })),
+              },
+              {
+                path: routePatterns.fieldData,
+                loader: async ({ params }) => {
+                  const { user } = await session();
+                  if (!user) return null;
+                  await queryClient.ensureQueryData(studyQueryOptions(params.studyId ?? ""));
+                  return null;
+                },
+                lazy: () => import("./field-data").then((m) => ({ Component: m.FieldDataPage })),
+              },
+              {
+                // Charts and analyses load only when a dataset is opened.
+                path: routePatterns.dataset,
+                loader: async ({ params }) => {
+                  const { user } = await session();
+                  if (!user) return null;
+                  const d = await queryClient.fetchQuery({ ...datasetQueryOptions(params.datasetId ?? ""), staleTime: 0 });
+                  await queryClient.ensureQueryData(studyQueryOptions(d.studyId));
+                  return null;
+                },
+                lazy: () => import("./dataset").then((m) => ({ Component: m.DatasetPage })),
               },
               {
                 path: routePatterns.settings,

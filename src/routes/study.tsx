@@ -2,6 +2,7 @@ import { useParams } from "react-router";
 import { roleAtLeast } from "../../shared/schemas";
 import { useStudy } from "../api/studies";
 import { ActivityPanel } from "../features/activity/activity-panel";
+import { FieldDataSection } from "../features/field-data/field-data-section";
 import { InvitationsPanel } from "../features/invitations/invitations-panel";
 import { LifeCyclesPanel } from "../features/life-cycles/life-cycles-panel";
 import { MembersPanel } from "../features/members/members-panel";
@@ -21,6 +22,7 @@ export function StudyPage() {
       <div className="grid gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
         <div className="min-w-0 space-y-6">
           <LifeCyclesPanel studyId={study.id} canCreate={roleAtLeast(study.role, "editor")} />
+          <FieldDataSection studyId={study.id} canEdit={roleAtLeast(study.role, "editor")} />
           <MembersPanel study={study} />
           {isOwner && <InvitationsPanel studyId={study.id} />}
         </div>

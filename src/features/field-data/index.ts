@@ -1,0 +1,4 @@
+export { DatasetsTable, KIND_LABEL } from "./datasets-panel";
+export { UploadWizard } from "./upload-wizard";
+export { CountsView } from "./counts-view";
+export { FatesView } from "./fates-view";
