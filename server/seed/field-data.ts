@@ -44,7 +44,7 @@ const SITES: Site[] = [
 const STAGES = ["Eft", "Subadult", "Adult"] as const;
 
 function countsCsv(rng: Random): string {
-  const lines = ["year,site,adult_females,efts,subadults,adults"];
+  const lines = ["year,site,females_counted,efts,subadults,adults"];
   for (const site of SITES) {
     let [e, s, a] = site.start;
     for (const year of YEARS) {
@@ -54,7 +54,7 @@ function countsCsv(rng: Random): string {
         const ce = seen(e);
         const cs = seen(s);
         const ca = seen(a);
-        lines.push(`${year},${site.name},${ca},${ce},${cs},${ca}`);
+        lines.push(`${year},${site.name},${ce + cs + ca},${ce},${cs},${ca}`);
       }
       const shock = Math.exp(site.shock * rng.normal() - (site.shock * site.shock) / 2);
       const ne = site.recruits * a * shock;
@@ -117,7 +117,7 @@ export async function seedFieldData(db: Db, jobs: JobSender, studyId: string): P
     name: DEMO_COUNTS_NAME,
     mapping: {
       time: "year",
-      count: "adult_females",
+      count: "females_counted",
       site: "site",
       stages: [
         { stage: "Eft", column: "efts" },

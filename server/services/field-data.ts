@@ -354,7 +354,11 @@ export async function fateAnalysis(db: Db, id: string, settings: FateAnalysisSet
   const siteNames = [...new Set(site)].sort();
   const bySite = settings.site === undefined && siteNames.length > 1 ? siteNames.map((s) => group(s, subset(sample, (k) => site[k] === s), { site: s, year: null })) : [];
   const yearValues = [...new Set(year)].sort((a, b) => a - b);
-  const byYear = settings.year === undefined && yearValues.length > 1 ? yearValues.map((y) => group(`${y}–${y + 1}`, subset(sample, (k) => year[k] === y), { site: settings.site ?? null, year: y })) : [];
+  // Years whose records have no known fate (the last census, say) have no matrix to show.
+  const byYear =
+    settings.year === undefined && yearValues.length > 1
+      ? yearValues.map((y) => group(`${y}–${y + 1}`, subset(sample, (k) => year[k] === y), { site: settings.site ?? null, year: y })).filter((g) => g.estimate.n.some((n) => n > 0))
+      : [];
   return { datasetId: id, stages, settings, pooled, bySite, byYear };
 }
 

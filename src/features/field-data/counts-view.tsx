@@ -116,11 +116,11 @@ export function CountsView({ dataset }: { dataset: DatasetSummary }) {
   const horizonOk = Number.isInteger(h) && h >= 1 && h <= 200;
   const result = useCountsAnalysis(dataset.id, { threshold: thresholdOk ? t : undefined, maxHorizon: horizonOk ? h : 50 });
 
-  // A first threshold: a tenth of the smallest last count, so the curve shows at once.
+  // A first threshold: half the smallest last count, so the curve shows at once.
   useEffect(() => {
     if (threshold !== "" || !result.data) return;
     const last = result.data.sites.map((s) => s.points.at(-1)?.count ?? 0).filter((c) => c > 0);
-    if (last.length) setThreshold(String(Math.max(1, Math.round(Math.min(...last) / 10))));
+    if (last.length) setThreshold(String(Math.max(1, Math.round(Math.min(...last) / 2))));
   }, [result.data, threshold]);
 
   return (

@@ -172,7 +172,7 @@ function RatesTables({ e }: { e: StageFateEstimate }) {
 function GroupsTable({ groups, caption }: { groups: FateGroup[]; caption: string }) {
   if (groups.length === 0) return null;
   return (
-    <table className="text-sm">
+    <table className="self-start text-sm">
       <caption className="mb-1 text-left font-bold">{caption}</caption>
       <thead className="text-left">
         <tr>
@@ -238,9 +238,9 @@ export function FatesView({ dataset, canEdit }: { dataset: DatasetSummary; canEd
     <div className="space-y-4">
       <Section title="Matrix from stage fates" description="Each column's entries are the shares of that stage's individuals found in each stage at the next census (Caswell 2001 ch. 6). Small samples bias λ (Fiske, Bruna & Bolker 2008): mind the n under each column.">
         <div className="grid gap-3 sm:grid-cols-4">
-          <SelectField label="Census timing" value={settings.census} onChange={(ev) => setSettings((s) => ({ ...s, census: ev.target.value as FateAnalysisSettings["census"] }))}>
-            <option value="pre-breeding">Pre-breeding (breeding just after the census)</option>
-            <option value="post-breeding">Post-breeding (breeding just before the census)</option>
+          <SelectField label="Census timing" description={settings.census === "pre-breeding" ? "Breeding just after each census." : "Breeding just before each census."} value={settings.census} onChange={(ev) => setSettings((s) => ({ ...s, census: ev.target.value as FateAnalysisSettings["census"] }))}>
+            <option value="pre-breeding">Pre-breeding</option>
+            <option value="post-breeding">Post-breeding</option>
           </SelectField>
           {settings.census === "pre-breeding" && (
             <TextField

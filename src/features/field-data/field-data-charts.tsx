@@ -73,7 +73,7 @@ export function RatioChart({ intervals, ariaLabel }: { intervals: { from: number
   const option = {
     textStyle,
     animation: false,
-    grid: { left: 8, right: 24, top: 24, bottom: 56, containLabel: true },
+    grid: { left: 8, right: 56, top: 24, bottom: 56, containLabel: true },
     tooltip: { trigger: "axis", axisPointer: { type: "shadow" }, valueFormatter: (v: number | null) => (v === null ? "no ratio" : formatNumber(v, 4)) },
     xAxis: { type: "category", data: labels, name: "interval", nameLocation: "middle", nameGap: 40, nameTextStyle: axisName, axisLabel: { rotate: 35 } },
     yAxis: { type: "value", name: "λ_t = N(t+1) / N(t)", nameTextStyle: { ...axisName, align: "left" }, splitLine: { lineStyle: { color: GRID_LINE } } },
