@@ -237,7 +237,7 @@ export function FatesView({ dataset, canEdit }: { dataset: DatasetSummary; canEd
   return (
     <div className="space-y-4">
       <Section title="Matrix from stage fates" description="Each column's entries are the shares of that stage's individuals found in each stage at the next census (Caswell 2001 ch. 6). Small samples bias λ (Fiske, Bruna & Bolker 2008): mind the n under each column.">
-        <div className="grid gap-3 sm:grid-cols-4">
+        <div className="grid gap-3 sm:grid-cols-5">
           <SelectField label="Census timing" description={settings.census === "pre-breeding" ? "Breeding just after each census." : "Breeding just before each census."} value={settings.census} onChange={(ev) => setSettings((s) => ({ ...s, census: ev.target.value as FateAnalysisSettings["census"] }))}>
             <option value="pre-breeding">Pre-breeding</option>
             <option value="post-breeding">Post-breeding</option>
@@ -266,6 +266,16 @@ export function FatesView({ dataset, canEdit }: { dataset: DatasetSummary; canEd
               {dataset.sites.map((s) => (
                 <option key={s} value={s}>
                   {s}
+                </option>
+              ))}
+            </SelectField>
+          )}
+          {dataset.firstYear !== null && dataset.lastYear !== null && dataset.lastYear > dataset.firstYear && (
+            <SelectField label="Years" value={settings.year === undefined ? "" : String(settings.year)} onChange={(ev) => setSettings((s) => ({ ...s, year: ev.target.value === "" ? undefined : Number(ev.target.value) }))}>
+              <option value="">All years pooled</option>
+              {Array.from({ length: Math.floor(dataset.lastYear) - Math.floor(dataset.firstYear) }, (_, k) => Math.floor(dataset.firstYear!) + k).map((y) => (
+                <option key={y} value={y}>
+                  {y} to {y + 1}
                 </option>
               ))}
             </SelectField>
