@@ -18,11 +18,13 @@ import { devMailRoutes } from "./routes/dev-mail";
 import { leverRoutes } from "./routes/levers";
 import { lifeCycleRoutes } from "./routes/life-cycles";
 import { reviewRoutes } from "./routes/review";
+import { reportRoutes } from "./routes/reports";
 import { runRoutes } from "./routes/runs";
 import type { RunKinds } from "./runs/kinds";
 import type { JobSender } from "./runs/queue";
 import { studyRoutes } from "./routes/studies";
-import { userForApiToken } from "./services/api-tokens";
+import { tokenScopeCheck } from "./auth/token-scope";
+import { checkApiToken } from "./services/api-tokens";
 import { findUserById } from "./services/users";
 
 export interface AppDeps extends Database {
@@ -51,6 +53,7 @@ export function createApiRouter(deps: AppDeps): Router {
   runRoutes(r, deps);
   reviewRoutes(r, deps);
   leverRoutes(r, deps);
+  reportRoutes(r, deps);
   if (deps.config.mailOutbox) devMailRoutes(r, deps);
   return r;
 }
@@ -88,10 +91,12 @@ export function createApp(deps: AppDeps): Express {
     const header = req.get("authorization");
     if (!header) return next();
     const match = /^Bearer\s+(\S+)$/i.exec(header);
-    const user = match ? await userForApiToken(db, match[1]!) : null;
-    if (!user) return next(new HttpError(401, "The API token is not valid: it may be mistyped or revoked. Mint a new one in Settings."));
-    req.user = user;
+    if (!match) return next(new HttpError(401, "The Authorization header must be “Bearer <token>”."));
+    const check = await checkApiToken(db, match[1]!);
+    if (!check.ok) return next(new HttpError(401, check.message));
+    req.user = check.user;
     req.authVia = "token";
+    req.tokenScope = check.scope;
     next();
   });
   api.use((req, _res, next) => {
@@ -99,6 +104,7 @@ export function createApp(deps: AppDeps): Express {
     next();
   });
   api.use(csrfProtection(config.sessionSecret, { secureCookie: config.publicUrl.startsWith("https:") }));
+  api.use(tokenScopeCheck);
   api.use(createApiRouter(deps));
   api.use(apiNotFound);
   app.use(API_PREFIX, api);

@@ -117,6 +117,10 @@ export const apiTokens = pgTable(
     createdAt: createdAt(),
     lastUsedAt: timestamp("last_used_at", { withTimezone: true }),
     revokedAt: timestamp("revoked_at", { withTimezone: true }),
+    /** After this moment the token is refused (401); null: it never expires. */
+    expiresAt: timestamp("expires_at", { withTimezone: true }),
+    /** "read" (GET requests and the stateless analysis) or "read-write". Tokens made before scopes existed could write. */
+    scope: varchar("scope", { length: 16 }).notNull().default("read-write"),
   },
   (t) => [uniqueIndex("api_tokens_hash_unique").on(t.tokenHash), index("api_tokens_user_idx").on(t.userId)],
 );

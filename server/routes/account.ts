@@ -2,6 +2,7 @@ import type { Router } from "express";
 import { ApiTokenCreateSchema, PasswordChangeSchema, ProfileUpdateSchema } from "../../shared/schemas/auth";
 import type { AppDeps } from "../app";
 import { currentUser, signedIn, uuidParam } from "../auth/authorize";
+import { sessionOnly } from "../auth/token-scope";
 import { createApiToken, listApiTokens, revokeApiToken } from "../services/api-tokens";
 import { changePassword, updateProfile } from "../services/users";
 
@@ -11,7 +12,7 @@ export function accountRoutes(r: Router, { db }: AppDeps): void {
     res.json({ user });
   });
 
-  r.post("/account/password", signedIn, async (req, res) => {
+  r.post("/account/password", signedIn, sessionOnly, async (req, res) => {
     await changePassword(db, currentUser(req).id, PasswordChangeSchema.parse(req.body));
     res.status(204).end();
   });
@@ -20,12 +21,12 @@ export function accountRoutes(r: Router, { db }: AppDeps): void {
     res.json(await listApiTokens(db, currentUser(req).id));
   });
 
-  r.post("/account/tokens", signedIn, async (req, res) => {
-    const { name } = ApiTokenCreateSchema.parse(req.body);
-    res.status(201).json(await createApiToken(db, currentUser(req).id, name));
+  r.post("/account/tokens", signedIn, sessionOnly, async (req, res) => {
+    const { name, scope, expiresInDays } = ApiTokenCreateSchema.parse(req.body);
+    res.status(201).json(await createApiToken(db, currentUser(req).id, name, { scope, expiresInDays }));
   });
 
-  r.delete("/account/tokens/:tokenId", signedIn, async (req, res) => {
+  r.delete("/account/tokens/:tokenId", signedIn, sessionOnly, async (req, res) => {
     await revokeApiToken(db, currentUser(req).id, uuidParam(req, "tokenId"));
     res.status(204).end();
   });
