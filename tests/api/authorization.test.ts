@@ -88,6 +88,7 @@ const riskSettings = (lifeCycleId: string) => ({ environment: { kind: "matrices"
 
 const MATRIX: Record<string, Entry> = {
   "GET /health": { access: "public", request: async () => ({ path: "/health" }) },
+  "GET /openapi.json": { access: "public", request: async () => ({ path: "/openapi.json" }) },
   "GET /auth/session": { access: "public", request: async () => ({ path: "/auth/session" }) },
   "POST /auth/sign-up": {
     access: "public",
@@ -146,6 +147,7 @@ const MATRIX: Record<string, Entry> = {
     request: async (c) => ({ path: `/studies/${c.studyId}/invitations/${(await freshInvitation(c)).id}` }),
   },
   "GET /studies/:studyId/activity": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}/activity` }) },
+  "GET /studies/:studyId/export.zip": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}/export.zip` }) },
   "GET /invitations/:token": { access: "public", request: async (c) => ({ path: `/invitations/${(await freshInvitation(c)).token}` }) },
   // Accepting joins a Study: use another one, so the personas of the matrix Study stay as they are.
   "POST /invitations/:token/accept": { access: "user", request: async (c) => ({ path: `/invitations/${(await freshInvitation(c, otherStudyId)).token}/accept` }) },
@@ -162,6 +164,8 @@ const MATRIX: Record<string, Entry> = {
   "DELETE /life-cycles/:lifeCycleId": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}` }) },
   "POST /life-cycles/:lifeCycleId/duplicate": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/duplicate`, body: {} }) },
   "GET /life-cycles/:lifeCycleId/analysis": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/analysis` }) },
+  "GET /life-cycles/:lifeCycleId/report": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/report` }) },
+  "GET /life-cycles/:lifeCycleId/report.pdf": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/report.pdf` }) },
   "GET /life-cycles/:lifeCycleId/snapshots": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/snapshots` }) },
   "POST /life-cycles/:lifeCycleId/snapshots": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/snapshots`, body: { message: "snap" } }) },
   "GET /snapshots/:snapshotId": { access: "viewer", request: async (c) => ({ path: `/snapshots/${await freshSnapshot(c, await freshLifeCycle(c))}` }) },
