@@ -13,6 +13,7 @@ import SVGtoPDF from "svg-to-pdfkit";
 import { formatLambda, formatNumber, formatPercent } from "../../shared/format/number-format";
 import { censusNote } from "../../shared/format/verdict";
 import type { LifeCycleReport } from "../../shared/report/model";
+import { dateText, describeSource, uncertaintyText } from "../../shared/report/text";
 import type { Paper } from "../../shared/schemas/report";
 import { INK, SPRUCE } from "../../shared/diagram/palette";
 
@@ -27,28 +28,6 @@ const OCHRE = "#a87a12";
 /** Page sizes in PostScript points. */
 const PAPER: Record<Paper, [number, number]> = { a4: [595.28, 841.89], letter: [612, 792] };
 const MARGIN = 50;
-
-export function describeSource(r: LifeCycleReport): string {
-  const s = r.source;
-  if (s.kind === "snapshot") return `Snapshot #${s.number} (${s.id}) of ${dateText(s.createdAt)}${s.authorName ? ` by ${s.authorName}` : ""}: “${s.message}”`;
-  const snap = s.latestSnapshot;
-  const snapText = snap
-    ? snap.sameAsNow
-      ? `identical to snapshot #${snap.number} (${snap.id}) of ${dateText(snap.createdAt)}`
-      : `changed since snapshot #${snap.number} (${snap.id}) of ${dateText(snap.createdAt)}`
-    : "no snapshot taken yet";
-  return `Saved state, version ${s.version} of ${dateText(s.savedAt)}; ${snapText}`;
-}
-
-export function dateText(iso: string): string {
-  return `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
-}
-
-export function uncertaintyText(rate: LifeCycleReport["document"]["rates"][number]): string {
-  if (rate.ci) return `${Math.round(rate.ci.level * 100)} % CI ${formatNumber(rate.ci.lower)} – ${formatNumber(rate.ci.upper)}`;
-  if (rate.se !== undefined) return `SE ${formatNumber(rate.se)}`;
-  return "—";
-}
 
 /** Renders the report; resolves with the PDF bytes. */
 export function reportPdf(report: LifeCycleReport, paper: Paper): Promise<Buffer> {
@@ -193,7 +172,7 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
 
     heading("Checks of the model");
     if (a.diagnostics.length === 0) para("No problems found: survival out of every stage is at most 1, and the matrix is irreducible and primitive.");
-    for (const d of a.diagnostics) para(`${d.severity === "error" ? "✕" : d.severity === "warning" ? "!" : "•"} ${d.message}`, { color: d.severity === "error" ? "#9f2d2d" : d.severity === "warning" ? OCHRE : INK });
+    for (const d of a.diagnostics) para(`${d.severity === "error" ? "✕" : d.severity === "warning" ? "!" : "•"} ${d.message}`, { color: d.severity === "error" ? "#9f2d2d" : INK });
   }
 
   if (r.risk) {

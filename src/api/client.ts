@@ -125,6 +125,26 @@ async function request<T>(method: Method, path: string, body?: unknown, signal?:
   return (text ? JSON.parse(text) : undefined) as T;
 }
 
+/** A file from the server (PDF, zip), with the name it asked to be saved as. */
+export interface DownloadedFile {
+  blob: Blob;
+  fileName: string;
+}
+
+async function requestFile(path: string, fallbackName: string, signal?: AbortSignal): Promise<DownloadedFile> {
+  let response: Response;
+  try {
+    response = await fetch(`${API_BASE}${path}`, { credentials: "same-origin", signal });
+  } catch (cause) {
+    if (signal?.aborted) throw cause;
+    throw new ApiError(0, "network", "Stagewright cannot reach its server. Check your connection, then try again.");
+  }
+  if (!response.ok) throw await toApiError(response);
+  const disposition = response.headers.get("Content-Disposition") ?? "";
+  const fileName = /filename="([^"]+)"/.exec(disposition)?.[1] ?? fallbackName;
+  return { blob: await response.blob(), fileName };
+}
+
 /** Encode one path segment (ids and tokens come from URLs and must not break out of their segment). */
 export function segment(value: string): string {
   return encodeURIComponent(value);
@@ -136,4 +156,6 @@ export const api = {
   patch: <T>(path: string, body: unknown) => request<T>("PATCH", path, body),
   put: <T>(path: string, body: unknown) => request<T>("PUT", path, body),
   delete: (path: string) => request<void>("DELETE", path),
+  /** GET a file; failures become ApiErrors like any other request. */
+  file: (path: string, fallbackName: string, signal?: AbortSignal) => requestFile(path, fallbackName, signal),
 };

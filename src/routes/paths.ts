@@ -15,6 +15,8 @@ export const routePatterns = {
   studies: "/studies",
   study: "/studies/:studyId",
   lifeCycle: "/life-cycles/:lifeCycleId",
+  report: "/life-cycles/:lifeCycleId/report",
+  apiGuide: "/api-guide",
   settings: "/settings",
   mailOutbox: "/mail",
   unsubscribe: "/unsubscribe",
@@ -41,6 +43,10 @@ export const paths = {
   studies: () => routePatterns.studies,
   study: (studyId: string) => generatePath(routePatterns.study, { studyId }),
   lifeCycle: (lifeCycleId: string) => generatePath(routePatterns.lifeCycle, { lifeCycleId }),
+  /** `snapshot`: report that snapshot instead of the saved state. */
+  report: (lifeCycleId: string, options: { snapshot?: string | null } = {}) =>
+    withSearch(generatePath(routePatterns.report, { lifeCycleId }), { snapshot: options.snapshot }),
+  apiGuide: () => routePatterns.apiGuide,
   settings: () => routePatterns.settings,
   mailOutbox: () => routePatterns.mailOutbox,
   studyActivity: (studyId: string) => generatePath(routePatterns.studyActivity, { studyId }),

@@ -73,6 +73,11 @@ export const routes: RouteObject[] = [
             lazy: () => import("./accept-invitation").then((m) => ({ Component: m.AcceptInvitationPage })),
           },
           {
+            // Public like the document it shows: a script's author may read it before signing up.
+            path: routePatterns.apiGuide,
+            lazy: () => import("./api-guide").then((m) => ({ Component: m.ApiGuidePage })),
+          },
+          {
             path: routePatterns.mailOutbox,
             lazy: () => import("./mail-outbox").then((m) => ({ Component: m.MailOutboxPage })),
           },
@@ -129,6 +134,10 @@ export const routes: RouteObject[] = [
                   return null;
                 },
                 lazy: () => import("./life-cycle-editor").then((m) => ({ Component: m.LifeCycleEditorPage })),
+              },
+              {
+                path: routePatterns.report,
+                lazy: () => import("./report").then((m) => ({ Component: m.ReportPage })),
               },
               {
                 path: routePatterns.settings,

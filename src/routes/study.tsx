@@ -5,6 +5,7 @@ import { ActivityPanel } from "../features/activity/activity-panel";
 import { InvitationsPanel } from "../features/invitations/invitations-panel";
 import { LifeCyclesPanel } from "../features/life-cycles/life-cycles-panel";
 import { MembersPanel } from "../features/members/members-panel";
+import { StudyExportPanel } from "../features/report";
 import { StudyDetailsForm } from "../features/studies/study-details-form";
 import { StudyHeader } from "../features/studies/study-header";
 
@@ -26,6 +27,7 @@ export function StudyPage() {
         </div>
         <div className="min-w-0 space-y-6">
           {isOwner && <StudyDetailsForm study={study} />}
+          <StudyExportPanel studyId={study.id} />
           <ActivityPanel studyId={study.id} />
         </div>
       </div>

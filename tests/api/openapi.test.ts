@@ -51,17 +51,17 @@ describe("OpenAPI document", () => {
   });
 
   it("describes request bodies with the zod schemas the routes parse", () => {
-    const doc = buildOpenApiDocument({ includeDev: false }) as { paths: Record<string, Record<string, any>>; components: { schemas: Record<string, any> } };
-    const tokenBody = doc.paths["/account/tokens"]!.post.requestBody.content["application/json"].schema;
-    expect(tokenBody).toEqual({ $ref: "#/components/schemas/ApiTokenCreate" });
-    const create = doc.components.schemas.ApiTokenCreate;
-    expect(create.properties.scope.enum).toEqual(["read", "read-write"]);
-    expect(create.properties.expiresInDays.anyOf[0]).toMatchObject({ type: "integer", minimum: 1, maximum: 366 });
-    expect(create.required).toEqual(["name"]);
+    const doc = buildOpenApiDocument({ includeDev: false });
+    const at = (...keys: string[]): unknown => keys.reduce<unknown>((x, k) => (x as Record<string, unknown> | undefined)?.[k], doc);
+    expect(at("paths", "/account/tokens", "post", "requestBody", "content", "application/json", "schema")).toEqual({ $ref: "#/components/schemas/ApiTokenCreate" });
+    expect(at("components", "schemas", "ApiTokenCreate", "properties", "scope", "enum")).toEqual(["read", "read-write"]);
+    expect(at("components", "schemas", "ApiTokenCreate", "properties", "expiresInDays", "anyOf", "0")).toMatchObject({ type: "integer", minimum: 1, maximum: 366 });
+    expect(at("components", "schemas", "ApiTokenCreate", "required")).toEqual(["name"]);
     // Scope and role of each operation, for people and for tools.
-    expect(doc.paths["/studies/{studyId}"]!.patch["x-stagewright-access"]).toBe("owner");
-    expect(doc.paths["/studies/{studyId}"]!.patch["x-token-scope"]).toBe("read-write");
-    expect(doc.paths["/analyze"]!.post["x-token-scope"]).toBe("read");
-    expect(doc.paths["/life-cycles/{lifeCycleId}/report.pdf"]!.get.parameters.map((p: { name: string }) => p.name)).toEqual(["lifeCycleId", "snapshot", "paper"]);
+    expect(at("paths", "/studies/{studyId}", "patch", "x-stagewright-access")).toBe("owner");
+    expect(at("paths", "/studies/{studyId}", "patch", "x-token-scope")).toBe("read-write");
+    expect(at("paths", "/analyze", "post", "x-token-scope")).toBe("read");
+    const params = at("paths", "/life-cycles/{lifeCycleId}/report.pdf", "get", "parameters") as { name: string }[];
+    expect(params.map((p) => p.name)).toEqual(["lifeCycleId", "snapshot", "paper"]);
   });
 });
