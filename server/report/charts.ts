@@ -30,12 +30,10 @@ const shortName = (s: string) => (s.length > 14 ? `${s.slice(0, 13)}…` : s);
 /** Elasticities e_ij as a heatmap from paper to spruce: rows = stage at t+1, columns = stage at t. */
 export function elasticityHeatmap(elasticity: number[][], names: string[]): string {
   const n = names.length;
-  const data: [number, number, number][] = [];
   let max = 0;
-  elasticity.forEach((row, i) => row.forEach((e, j) => {
-    data.push([j, n - 1 - i, e]);
-    if (e > max) max = e;
-  }));
+  for (const row of elasticity) for (const e of row) if (e > max) max = e;
+  // Labels in white on the darker cells, ink on the paler ones.
+  const data = elasticity.flatMap((row, i) => row.map((e, j) => ({ value: [j, n - 1 - i, e], label: { color: e > 0.5 * max ? "#ffffff" : INK } })));
   const cell = Math.max(18, Math.min(56, Math.floor(440 / Math.max(n, 1))));
   const width = 150 + cell * n;
   const height = 90 + cell * n;
@@ -59,9 +57,9 @@ export function elasticityHeatmap(elasticity: number[][], names: string[]): stri
 export function stageVectorsChart(names: string[], w: number[], v: number[] | null): string {
   const width = Math.max(420, 60 + names.length * 48);
   const vmax = v ? Math.max(...v.filter(Number.isFinite)) : 1;
-  return render(width, 260, {
-    grid: { left: 56, right: 56, top: 36, bottom: 56 },
-    legend: { top: 0, textStyle: FONT },
+  return render(width, 290, {
+    grid: { left: 56, right: 56, top: 40, bottom: 80 },
+    legend: { bottom: 0, textStyle: FONT },
     xAxis: { type: "category", data: names.map(shortName), axisLabel: { rotate: names.length > 6 ? 45 : 0, fontSize: 10 } },
     yAxis: [
       { type: "value", name: "share w", min: 0, max: 1, axisLabel: { formatter: (x: number) => `${Math.round(x * 100)} %` } },
@@ -78,15 +76,15 @@ export function stageVectorsChart(names: string[], w: number[], v: number[] | nu
 export function riskChart(result: RiskRunResult): string {
   const { year, probability, lower, upper } = result.quasiExtinction.byYear;
   const unit = result.timeStepUnit;
-  return render(520, 260, {
-    grid: { left: 60, right: 20, top: 30, bottom: 48 },
-    legend: { top: 0, textStyle: FONT },
-    xAxis: { type: "value", name: `${unit}s from now`, nameLocation: "middle", nameGap: 28, min: 0, max: result.horizon },
+  return render(520, 300, {
+    grid: { left: 60, right: 20, top: 36, bottom: 70 },
+    legend: { bottom: 0, textStyle: FONT, data: ["Quasi-extinction probability", "95 % band"] },
+    xAxis: { type: "value", name: `${unit}s from now`, nameLocation: "middle", nameGap: 26, min: 0, max: result.horizon },
     yAxis: { type: "value", name: "probability", min: 0, max: 1, axisLabel: { formatter: (x: number) => formatNumber(x, 2) } },
     series: [
-      { name: "95 % band, lower", type: "line", data: year.map((t, k) => [t, lower[k]]), showSymbol: false, lineStyle: { color: CLAY, type: "dashed", width: 1 } },
+      { name: "95 % band", type: "line", data: year.map((t, k) => [t, lower[k]]), showSymbol: false, lineStyle: { color: CLAY, type: "dashed", width: 1 }, itemStyle: { color: CLAY } },
       { name: "Quasi-extinction probability", type: "line", data: year.map((t, k) => [t, probability[k]]), showSymbol: false, lineStyle: { color: CLAY, width: 2 }, itemStyle: { color: CLAY } },
-      { name: "95 % band, upper", type: "line", data: year.map((t, k) => [t, upper[k]]), showSymbol: false, lineStyle: { color: CLAY, type: "dashed", width: 1 } },
+      { name: "95 % band", type: "line", data: year.map((t, k) => [t, upper[k]]), showSymbol: false, lineStyle: { color: CLAY, type: "dashed", width: 1 }, itemStyle: { color: CLAY } },
     ],
   });
 }

@@ -3,7 +3,7 @@
  * (the diagram and the ECharts charts drawn on the server), placed as
  * vectors with svg-to-pdfkit. DejaVu Sans is embedded because the standard
  * PDF fonts have no Greek (λ) and no minus sign. See
- * docs/decisions/0004-report-pdf-on-the-server.md.
+ * docs/decisions/report-pdf-on-the-server.md.
  */
 import { readFileSync } from "node:fs";
 import { createRequire } from "node:module";
@@ -51,6 +51,8 @@ export function reportPdf(report: LifeCycleReport, paper: Paper): Promise<Buffer
   for (let i = range.start; i < range.start + range.count; i++) {
     doc.switchToPage(i);
     const y = doc.page.height - MARGIN + 16;
+    // Writing below the bottom margin would start a new page: lift the margin while the footer is written.
+    doc.page.margins.bottom = 0;
     doc.font("Body").fontSize(8).fillColor(MUTED);
     doc.text(`${report.lifeCycle.name} · Stagewright report · page ${i + 1} of ${range.count}`, MARGIN, y, { width: doc.page.width - 2 * MARGIN, align: "center", lineBreak: false });
   }
@@ -64,8 +66,9 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
   const unit = r.document.timeStepUnit;
   const names = r.document.stages.map((s) => s.name);
 
-  const heading = (text: string) => {
-    if (doc.y > doc.page.height - MARGIN - 80) doc.addPage();
+  /** A section heading, moved to a new page with what follows when less than `keep` points are left. */
+  const heading = (text: string, keep = 80) => {
+    if (doc.y > doc.page.height - MARGIN - keep) doc.addPage();
     doc.moveDown(0.8).font("Bold").fontSize(13).fillColor(SPRUCE).text(text, MARGIN, doc.y, { width });
     doc.moveDown(0.3).font("Body").fontSize(9.5).fillColor(INK);
   };
@@ -75,7 +78,7 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
   };
   const figure = (svg: string, caption: string, maxHeight = 300) => {
     const size = svgSize(svg);
-    const scale = Math.min(width / size.width, maxHeight / size.height, 1.2);
+    const scale = Math.min(width / size.width, maxHeight / size.height, 1);
     const w = size.width * scale;
     const h = size.height * scale;
     if (doc.y + h + 30 > doc.page.height - MARGIN) doc.addPage();
@@ -116,7 +119,7 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
     para(`λ cannot be computed: ${r.analysisProblem ?? a?.nullReasons.lambda ?? "the model is incomplete."}`, { color: "#9f2d2d" });
   }
 
-  heading("Life-cycle diagram");
+  heading("Life-cycle diagram", 220);
   figure(r.figures.diagram, "Stages (with their stable-stage share and reproductive value) and arrows: survival and growth solid green, reproduction dashed clay, each labelled with its rate.", 330);
 
   heading("Stages");
@@ -146,12 +149,12 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
   } else para("The matrix cannot be built until every rate can be computed.");
 
   if (a?.elasticity && r.figures.elasticity) {
-    heading("Elasticities");
+    heading("Elasticities", 260);
     para("Each cell is the share of λ's response to a proportional change in that matrix entry; they sum to 1. Darker cells are stronger levers.");
     figure(r.figures.elasticity, "Elasticity e_ij = (a_ij/λ) ∂λ/∂a_ij; rows: stage at t+1, columns: stage at t.", 320);
   }
   if (r.figures.stageVectors) {
-    heading("Stable stage distribution and reproductive values");
+    heading("Stable stage distribution and reproductive values", 260);
     figure(r.figures.stageVectors, "w: share of each stage once the structure has settled; v: each stage's worth to future growth.", 240);
   }
 
@@ -207,11 +210,25 @@ function drawTable(doc: PDFKit.PDFDocument, header: string[], rows: string[][], 
   const width = doc.page.width - 2 * MARGIN;
   const pad = 3;
   doc.font("Body").fontSize(fontSize);
-  const longest = header.map((h, c) => Math.max(doc.widthOfString(h), ...rows.map((r) => doc.widthOfString(r[c] ?? ""))) + 2 * pad);
-  const minimum = width / header.length / 2;
-  const wanted = longest.map((w) => Math.max(Math.min(w, width * 0.45), Math.min(minimum, w)));
-  const sum = wanted.reduce((a, b) => a + b, 0);
-  const widths = wanted.map((w) => (w * width) / sum);
+  // Each column gets at least its widest word (so no word breaks) and shares the rest by its longest text.
+  const widest = (texts: string[], measure: (t: string) => number) => texts.reduce((m, t) => Math.max(m, measure(t)), 0);
+  const wordWidth = (t: string) => widest(t.split(/\s+/), (w) => doc.widthOfString(w));
+  const cells = (c: number) => rows.map((r) => r[c] ?? "");
+  // The header is bold: measure it in its own font.
+  doc.font("Bold").fontSize(fontSize);
+  const headerWords = header.map((h) => wordWidth(h));
+  const headerWidths = header.map((h) => doc.widthOfString(h));
+  doc.font("Body").fontSize(fontSize);
+  const words = header.map((_, c) => Math.max(headerWords[c]!, widest(cells(c), wordWidth)) + 2 * pad);
+  const longest = header.map((_, c) => Math.min(Math.max(headerWidths[c]!, widest(cells(c), (t) => doc.widthOfString(t))) + 2 * pad, width * 0.5));
+  const spare = Math.max(0, width - words.reduce((a, b) => a + b, 0));
+  const extra = longest.map((l, c) => Math.max(0, l - words[c]!));
+  const extraSum = extra.reduce((a, b) => a + b, 0);
+  const wordSum = words.reduce((a, b) => a + b, 0);
+  const widths =
+    wordSum > width
+      ? words.map((w) => (w * width) / wordSum) // too many columns: shrink them all (long words may break)
+      : words.map((w, c) => w + (extraSum > 0 ? (spare * extra[c]!) / extraSum : spare / words.length));
   const rowHeight = (cells: string[], font: string) => {
     doc.font(font).fontSize(fontSize);
     return Math.max(...cells.map((t, c) => doc.heightOfString(t, { width: widths[c]! - 2 * pad }))) + 2 * pad;
