@@ -114,7 +114,7 @@ export const OPERATIONS: Operation[] = [
     method: "get",
     path: "/openapi.json",
     tag: "Service",
-    summary: "This document",
+    summary: "This API described as an OpenAPI 3.1 document",
     access: "public",
     responses: [ok("The OpenAPI 3.1 description of every route under /api/v1.", { description: "An OpenAPI 3.1 document." })],
   },
