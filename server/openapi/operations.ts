@@ -45,7 +45,18 @@ import {
   SnapshotSchema,
   SnapshotSummarySchema,
 } from "../../shared/schemas/life-cycles";
+import { LeversRequestSchema, LtreRequestSchema } from "../../shared/schemas/levers";
 import { ReportQuerySchema } from "../../shared/schemas/report";
+import {
+  ActivityQuerySchema,
+  CommentCreateSchema,
+  CommentReplySchema,
+  CommentUpdateSchema,
+  NotificationPreferencesSchema,
+  ReviewDecisionSchema,
+  ReviewRequestCreateSchema,
+  UnsubscribeSchema,
+} from "../../shared/schemas/review";
 import { RiskSettingsSchema } from "../../shared/schemas/risk";
 import { RunCreateSchema } from "../../shared/schemas/runs";
 import { LifeCycleSchema } from "../../shared/lifecycle";
@@ -134,7 +145,7 @@ export const OPERATIONS: Operation[] = [
     path: "/account/tokens",
     tag: "API tokens",
     summary: "Mint an API token (signed in, not with a token)",
-    description: "scope \"read\" allows GET requests and POST /analyze; \"read-write\" everything your roles allow. expiresInDays: null for a token that never expires.",
+    description: "scope \"read\" allows GET requests and POST /analyze, /levers and /ltre; \"read-write\" everything your roles allow. expiresInDays: null for a token that never expires.",
     access: "user",
     body: named("ApiTokenCreate", ApiTokenCreateSchema),
     responses: [created("The token, with its secret shown this once.", named("NewApiToken", NewApiTokenSchema))],
@@ -152,7 +163,15 @@ export const OPERATIONS: Operation[] = [
   { method: "get", path: "/studies/:studyId/invitations", tag: "Studies", summary: "Pending invitations", access: "owner", responses: [ok("Invitations.", list(Invitation))] },
   { method: "post", path: "/studies/:studyId/invitations", tag: "Studies", summary: "Invite someone by e-mail with a role", access: "owner", body: named("InvitationCreate", InvitationCreateSchema), responses: [created("The invitation (the e-mail is on its way).", Invitation)] },
   { method: "delete", path: "/studies/:studyId/invitations/:invitationId", tag: "Studies", summary: "Withdraw an invitation", access: "owner", responses: [noContent("Withdrawn.")] },
-  { method: "get", path: "/studies/:studyId/activity", tag: "Studies", summary: "The Study's activity, newest first", access: "viewer", responses: [ok("Activity.", list(named("AuditEvent", AuditEventSchema)))] },
+  {
+    method: "get",
+    path: "/studies/:studyId/activity",
+    tag: "Studies",
+    summary: "The Study's activity, newest first, filtered by kind, person, life cycle and dates",
+    access: "viewer",
+    query: named("ActivityQuery", ActivityQuerySchema),
+    responses: [ok("Activity.", { description: "Activity rows (AuditEvent), newest first, and whether there are more." })],
+  },
   {
     method: "get",
     path: "/studies/:studyId/export.zip",
@@ -219,6 +238,73 @@ export const OPERATIONS: Operation[] = [
     access: "viewer",
     query: named("ReportQuery", ReportQuerySchema),
     responses: [{ status: 200, description: "The PDF.", file: "application/pdf" }],
+  },
+
+  // Levers
+  {
+    method: "post",
+    path: "/levers",
+    tag: "Levers",
+    summary: "Scenarios compared, levers ranked, break-even values of a life-cycle document (stores nothing; read tokens may call it)",
+    access: "user",
+    body: named("LeversRequest", LeversRequestSchema),
+    responses: [ok("Scenarios with λ, verdict, R0 and generation time; levers ranked by the exact change in λ; break-even values.", { description: "Levers of the document." })],
+  },
+  {
+    method: "post",
+    path: "/ltre",
+    tag: "Levers",
+    summary: "Life-table response experiment between two life-cycle documents (stores nothing; read tokens may call it)",
+    access: "user",
+    body: named("LtreRequest", LtreRequestSchema),
+    responses: [ok("Contributions of each matrix entry and vital rate to the difference in λ.", { description: "LTRE contributions." })],
+  },
+
+  // Review
+  { method: "get", path: "/life-cycles/:lifeCycleId/comments", tag: "Review", summary: "Comment threads with their replies", access: "viewer", responses: [ok("Threads.", { description: "Comment threads, each with its anchor, replies and state." })] },
+  {
+    method: "post",
+    path: "/life-cycles/:lifeCycleId/comments",
+    tag: "Review",
+    summary: "Start a thread anchored to the life cycle, a stage, an arrow, a rate, a matrix cell or a snapshot",
+    access: "reviewer",
+    body: named("CommentCreate", CommentCreateSchema),
+    responses: [created("The thread.", { description: "The new thread." })],
+  },
+  { method: "post", path: "/comments/:commentId/replies", tag: "Review", summary: "Reply to a thread", access: "reviewer", body: named("CommentReply", CommentReplySchema), responses: [created("The reply.", { description: "The reply." })] },
+  { method: "patch", path: "/comments/:commentId", tag: "Review", summary: "Edit your own comment", access: "reviewer", body: named("CommentUpdate", CommentUpdateSchema), responses: [ok("The comment.", { description: "The comment as edited." })] },
+  { method: "delete", path: "/comments/:commentId", tag: "Review", summary: "Delete your own comment (owners: any comment)", access: "reviewer", responses: [noContent("Deleted.")] },
+  { method: "post", path: "/comments/:commentId/resolve", tag: "Review", summary: "Mark a thread resolved", access: "reviewer", responses: [ok("The thread.", { description: "The thread, resolved." })] },
+  { method: "post", path: "/comments/:commentId/reopen", tag: "Review", summary: "Reopen a resolved thread", access: "reviewer", responses: [ok("The thread.", { description: "The thread, open again." })] },
+  { method: "get", path: "/life-cycles/:lifeCycleId/reviews", tag: "Review", summary: "Review requests, decisions and the review status", access: "viewer", responses: [ok("The review status and the reviews.", { description: "{ status, reviews }" })] },
+  {
+    method: "post",
+    path: "/life-cycles/:lifeCycleId/reviews",
+    tag: "Review",
+    summary: "Ask reviewers to review a snapshot",
+    access: "editor",
+    body: named("ReviewRequestCreate", ReviewRequestCreateSchema),
+    responses: [created("The request.", { description: "The review request." })],
+  },
+  {
+    method: "post",
+    path: "/life-cycles/:lifeCycleId/reviews/decision",
+    tag: "Review",
+    summary: "Approve a snapshot or ask for changes, with a summary",
+    access: "reviewer",
+    body: named("ReviewDecision", ReviewDecisionSchema),
+    responses: [ok("The decision.", { description: "The review with its decision." })],
+  },
+  { method: "get", path: "/account/notifications", tag: "Account", summary: "How you get e-mail about comments and reviews", access: "user", responses: [ok("Your setting.", { description: "{ mode }" })] },
+  { method: "put", path: "/account/notifications", tag: "Account", summary: "E-mail as it happens, a daily digest, or none", access: "user", body: named("NotificationPreferences", NotificationPreferencesSchema), responses: [ok("Your setting.", { description: "{ mode }" })] },
+  {
+    method: "post",
+    path: "/notifications/unsubscribe",
+    tag: "Account",
+    summary: "Stop all e-mail with the token from an e-mail's link (no sign-in)",
+    access: "public",
+    body: named("Unsubscribe", UnsubscribeSchema),
+    responses: [ok("E-mail stopped.", { description: "What was turned off." })],
   },
 
   // Snapshots

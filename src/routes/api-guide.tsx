@@ -14,7 +14,7 @@ export function ApiGuidePage() {
           <>
             <p>
               Send <code className="font-mono">Authorization: Bearer &lt;token&gt;</code> with a personal API token from <TextLink to={paths.settings()}>Settings</TextLink>. A{" "}
-              <strong>read</strong> token may call GET routes and the stateless analysis; a <strong>read-write</strong> token may do everything your role in each Study allows.
+              <strong>read</strong> token may call GET routes and the computations that store nothing (analysis, levers, LTRE); a <strong>read-write</strong> token may do everything your role in each Study allows.
               An expired or revoked token gets 401; a token whose scope is too narrow gets 403.
             </p>
             <p>
