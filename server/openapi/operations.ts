@@ -10,7 +10,6 @@ import type { z } from "zod";
 import {
   ApiTokenCreateSchema,
   ApiTokenSchema,
-  AuditEventSchema,
   InvitationCreateSchema,
   InvitationPreviewSchema,
   InvitationSchema,
