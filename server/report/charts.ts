@@ -9,6 +9,7 @@ import * as echarts from "echarts/core";
 import { SVGRenderer } from "echarts/renderers";
 import { CLAY, INDIGO, INK, PAPER, SPRUCE } from "../../shared/diagram/palette";
 import { formatNumber } from "../../shared/format/number-format";
+import type { ScenarioComparison } from "../../shared/levers";
 import type { RiskRunResult } from "../../shared/schemas/runs";
 
 echarts.use([HeatmapChart, BarChart, LineChart, GridComponent, VisualMapComponent, LegendComponent, SVGRenderer]);
@@ -85,6 +86,31 @@ export function riskChart(result: RiskRunResult): string {
       { name: "95 % band", type: "line", data: year.map((t, k) => [t, lower[k]]), showSymbol: false, lineStyle: { color: CLAY, type: "dashed", width: 1 }, itemStyle: { color: CLAY } },
       { name: "Quasi-extinction probability", type: "line", data: year.map((t, k) => [t, probability[k]]), showSymbol: false, lineStyle: { color: CLAY, width: 2 }, itemStyle: { color: CLAY } },
       { name: "95 % band", type: "line", data: year.map((t, k) => [t, upper[k]]), showSymbol: false, lineStyle: { color: CLAY, type: "dashed", width: 1 }, itemStyle: { color: CLAY } },
+    ],
+  });
+}
+
+/** λ of the baseline and of each scenario that can be applied, with λ = 1 drawn across. */
+export function scenarioChart(comparison: ScenarioComparison): string | null {
+  const rows = comparison.rows.filter((r) => r.planned);
+  if (rows.length < 2) return null;
+  const names = rows.map((r) => shortName(r.name));
+  const values = rows.map((r) => r.planned!.lambda);
+  const top = Math.max(1.05, ...values) * 1.05;
+  const width = Math.max(420, 80 + rows.length * 70);
+  return render(width, 280, {
+    grid: { left: 56, right: 20, top: 30, bottom: rows.length > 5 ? 90 : 60 },
+    legend: { bottom: 0, textStyle: FONT, data: ["λ", "λ = 1"] },
+    xAxis: { type: "category", data: names, axisLabel: { rotate: rows.length > 5 ? 30 : 0, fontSize: 10, interval: 0 } },
+    yAxis: { type: "value", name: "λ", min: 0, max: Number(top.toFixed(2)) },
+    series: [
+      {
+        name: "λ",
+        type: "bar",
+        data: values.map((v, i) => ({ value: v, itemStyle: { color: i === 0 ? INK : v >= 1 ? SPRUCE : CLAY } })),
+        label: { show: true, position: "top", fontSize: 10, formatter: (p: { value: number }) => p.value.toFixed(4) },
+      },
+      { name: "λ = 1", type: "line", data: names.map(() => 1), symbol: "none", lineStyle: { color: INDIGO, type: "dashed", width: 1 }, itemStyle: { color: INDIGO } },
     ],
   });
 }

@@ -13,7 +13,7 @@ import SVGtoPDF from "svg-to-pdfkit";
 import { formatLambda, formatNumber, formatPercent } from "../../shared/format/number-format";
 import { censusNote } from "../../shared/format/verdict";
 import type { LifeCycleReport } from "../../shared/report/model";
-import { dateText, describeSource, uncertaintyText } from "../../shared/report/text";
+import { dateText, describeSource, lambdaIntervalText, leverRows, reviewRows, reviewStatusText, scenarioRows, uncertaintyText } from "../../shared/report/text";
 import type { Paper } from "../../shared/schemas/report";
 import { INK, SPRUCE } from "../../shared/diagram/palette";
 
@@ -113,7 +113,7 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
   if (a && a.lambda !== null) {
     doc.font("Bold").fontSize(16).fillColor(INK).text(`λ = ${formatLambda(a.lambda)}`, MARGIN, doc.y, { width });
     if (r.verdict) para(`The population is ${r.verdict.headline} once its stage structure has settled.${r.verdict.detail ? ` ${r.verdict.detail}` : ""}`);
-    para("No interval for λ from data: the rates' uncertainty is listed below; a Risk run shows the effect of variation over time.", { color: MUTED, size: 8.5 });
+    para(lambdaIntervalText(a) ?? "No interval for λ: no vital rate carries an SE, a CI or counts. A Risk run shows the effect of variation over time.", { color: lambdaIntervalText(a) ? INK : MUTED, size: lambdaIntervalText(a) ? 9.5 : 8.5 });
     para(censusNote(r.document.census), { color: MUTED, size: 8.5 });
   } else {
     para(`λ cannot be computed: ${r.analysisProblem ?? a?.nullReasons.lambda ?? "the model is incomplete."}`, { color: "#9f2d2d" });
@@ -176,6 +176,31 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
     heading("Checks of the model");
     if (a.diagnostics.length === 0) para("No problems found: survival out of every stage is at most 1, and the matrix is irreducible and primitive.");
     for (const d of a.diagnostics) para(`${d.severity === "error" ? "✕" : d.severity === "warning" ? "!" : "•"} ${d.message}`, { color: d.severity === "error" ? "#9f2d2d" : INK });
+  }
+
+  if (r.levers) {
+    const lv = r.levers;
+    heading("Levers", 160);
+    if (lv.problem) para(`No levers: ${lv.problem}`);
+    if (lv.comparison) {
+      para("The life cycle's scenarios side by side: λ after each scenario's planned changes, and the change from the baseline.");
+      const t = scenarioRows(lv);
+      table(t.header, t.rows, { fontSize: 8 });
+      if (r.figures.scenarios) figure(r.figures.scenarios, "λ of the baseline (ink) and of each scenario (green at or above 1, clay below); dashed: λ = 1.", 230);
+    } else if (!lv.problem) para("No scenarios yet: they are built on the Levers tab.");
+    if (lv.topLevers.length > 0) {
+      para(`The vital rates and matrix entries that move λ most, each changed alone by ${Math.round(lv.relativeChange * 100)} % (exact change in λ, not a linear estimate):`);
+      const t = leverRows(lv);
+      table(t.header, t.rows, { fontSize: 8 });
+    }
+    para("Levers compare modelled changes; whether an action can achieve them is a question for field evidence and the responsible authority.", { color: MUTED, size: 8 });
+  }
+
+  heading("Review");
+  para(reviewStatusText(r.review), { bold: r.review.status.state !== "none" });
+  if (r.review.reviews.length > 0) {
+    const t = reviewRows(r.review);
+    table(t.header, t.rows, { fontSize: 8 });
   }
 
   if (r.risk) {

@@ -6,16 +6,18 @@
 import { and, desc, eq, inArray, isNotNull, sql } from "drizzle-orm";
 import { diagramSvg, type DiagramReadout } from "../../shared/diagram/svg";
 import { lambdaVerdict } from "../../shared/format/verdict";
+import { compareScenarios, LeverError, leverModel, rankLevers } from "../../shared/levers";
 import type { LifeCycle } from "../../shared/lifecycle";
-import { REPORT_CAUTIONS, type LifeCycleReport, type ReportRisk, type ReportSource } from "../../shared/report/model";
+import { REPORT_CAUTIONS, type LifeCycleReport, type ReportLevers, type ReportRisk, type ReportSource } from "../../shared/report/model";
 import type { LifeCycleAnalysis } from "../../shared/schemas/life-cycles";
 import type { RiskRunResult } from "../../shared/schemas/runs";
 import type { Db } from "../db/client";
 import { auditEvents, runs, studies, users } from "../db/schema";
 import { HttpError, notFound } from "../http/errors";
-import { elasticityHeatmap, riskChart, stageVectorsChart } from "../report/charts";
+import { elasticityHeatmap, riskChart, scenarioChart, stageVectorsChart } from "../report/charts";
 import { analyzeLifeCycle } from "./analysis";
 import { getLifeCycle } from "./life-cycles";
+import { lifeCycleReviews } from "./reviews";
 import { getSnapshot, listSnapshots } from "./snapshots";
 
 /** The report of a life cycle as saved now, or of one of its snapshots. */
@@ -53,6 +55,7 @@ export async function buildReport(db: Db, lifeCycleId: string, options: { snapsh
   }
 
   const risk = await latestRisk(db, lifeCycleId);
+  const levers = analysis ? leversOf(document) : null;
   const names = document.stages.map((s) => s.name);
   const readouts = new Map<string, DiagramReadout>();
   if (analysis) {
@@ -69,6 +72,8 @@ export async function buildReport(db: Db, lifeCycleId: string, options: { snapsh
     analysisProblem,
     verdict: analysis && analysis.lambda !== null ? lambdaVerdict(analysis.lambda, document.timeStepUnit) : null,
     risk: risk?.summary ?? null,
+    levers,
+    review: await lifeCycleReviews(db, lifeCycleId),
     snapshots,
     cautions: REPORT_CAUTIONS,
     figures: {
@@ -76,8 +81,28 @@ export async function buildReport(db: Db, lifeCycleId: string, options: { snapsh
       elasticity: analysis?.elasticity ? elasticityHeatmap(analysis.elasticity, names) : null,
       stageVectors: analysis?.stableStage ? stageVectorsChart(names, analysis.stableStage, analysis.reproductiveValue) : null,
       risk: risk ? riskChart(risk.result) : null,
+      scenarios: levers?.comparison ? scenarioChart(levers.comparison) : null,
     },
   };
+}
+
+const RELATIVE_CHANGE = 0.1;
+
+/** The document's scenarios compared, and the levers that move λ most by ±10 % (the Levers tab's defaults). */
+function leversOf(doc: LifeCycle): ReportLevers {
+  try {
+    const scenarios = doc.scenarios ?? [];
+    const ranking = rankLevers(leverModel(doc), { relativeChange: RELATIVE_CHANGE, scenarios });
+    const topLevers = [...ranking.rows]
+      .filter((r) => r.increase.deltaLambda !== null || r.decrease.deltaLambda !== null)
+      .sort((a, b) => Math.abs(b.increase.deltaLambda ?? b.decrease.deltaLambda ?? 0) - Math.abs(a.increase.deltaLambda ?? a.decrease.deltaLambda ?? 0))
+      .slice(0, 8)
+      .map((r) => ({ label: r.label, value: r.value, elasticity: r.elasticity, deltaUp: r.increase.deltaLambda, deltaDown: r.decrease.deltaLambda }));
+    return { comparison: scenarios.length > 0 ? compareScenarios(doc, scenarios) : null, relativeChange: RELATIVE_CHANGE, topLevers, problem: null };
+  } catch (err) {
+    if (!(err instanceof LeverError)) throw err;
+    return { comparison: null, relativeChange: RELATIVE_CHANGE, topLevers: [], problem: err.message };
+  }
 }
 
 /** People who created, saved, restored or snapshotted the life cycle, most changes first. */

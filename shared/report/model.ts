@@ -5,7 +5,9 @@
  */
 import type { Verdict } from "../format/verdict";
 import type { LifeCycle } from "../lifecycle";
+import type { ScenarioComparison } from "../levers";
 import type { LifeCycleAnalysis, SnapshotSummary } from "../schemas/life-cycles";
+import type { ReviewStatus, ReviewView } from "../schemas/review";
 
 /** DESIGN.md §3: shown on Risk, Levers and every report. */
 export const REPORT_CAUTIONS: readonly string[] = [
@@ -44,12 +46,32 @@ export interface ReportRisk {
   criterionE: { highestMet: string | null; lines: string[]; caution: string };
 }
 
+/** Levers: the document's scenarios side by side, and the strongest single levers. */
+export interface ReportLevers {
+  /** null when the life cycle has no scenarios. */
+  comparison: ScenarioComparison | null;
+  /** The same relative change applied to every lever (0.1 = ±10 %). */
+  relativeChange: number;
+  /** The levers that move λ most when raised by `relativeChange`, strongest first (at most 8). */
+  topLevers: { label: string; value: number; elasticity: number; deltaUp: number | null; deltaDown: number | null }[];
+  /** Why there are no levers (the model cannot be changed or analysed). */
+  problem: string | null;
+}
+
+export interface ReportReview {
+  status: ReviewStatus;
+  /** Every decision and open request, newest first. */
+  reviews: ReviewView[];
+}
+
 export interface ReportFigures {
   /** SVG strings, drawn on the server (the diagram by shared/diagram, charts by ECharts' server-side renderer). */
   diagram: string;
   elasticity: string | null;
   stageVectors: string | null;
   risk: string | null;
+  /** λ of the baseline and each scenario. */
+  scenarios: string | null;
 }
 
 export interface LifeCycleReport {
@@ -65,6 +87,8 @@ export interface LifeCycleReport {
   analysisProblem: string | null;
   verdict: Verdict | null;
   risk: ReportRisk | null;
+  levers: ReportLevers | null;
+  review: ReportReview;
   snapshots: SnapshotSummary[];
   cautions: readonly string[];
   figures: ReportFigures;

@@ -1,5 +1,7 @@
 import { unzipSync, strFromU8 } from "fflate";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { eq } from "drizzle-orm";
+import { memberships } from "../../server/db/schema";
 import { formatLambda } from "../../shared/format/number-format";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 import { binaryParser, pdfText } from "../helpers/pdf";
@@ -92,6 +94,58 @@ describe("report", () => {
     expect(res.body.analysisProblem).toMatch(/no stages/);
     const pdf = await getPdf(`/api/v1/life-cycles/${id}/report.pdf`);
     expect((await pdfText(pdf.body as Buffer)).text).toContain("λ cannot be computed");
+  });
+});
+
+describe("report: uncertainty, levers and review", () => {
+  it("gives λ's interval from the rates' SEs, the scenarios compared and the strongest levers", async () => {
+    const doc = threeStageLifeCycle({ name: "With levers" });
+    doc.rates = doc.rates.map((r) => (r.name === "s_a" ? { ...r, se: 0.03 } : r.name === "s_j" ? { ...r, se: 0.05 } : r));
+    doc.scenarios = [
+      { id: "sc_fence", name: "Fence the road", action: "Culverts under the road", cost: 40, changes: [{ id: "ch_1", target: { kind: "rate", rateId: "vr_sa" }, op: "multiply", value: 1.05 }] },
+      { id: "sc_head", name: "Head-start juveniles", changes: [{ id: "ch_2", target: { kind: "rate", rateId: "vr_sj" }, op: "add", value: 0.1 }] },
+    ];
+    const id = (await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { document: doc })).body.id;
+    const analysis = (await owner.get(`/api/v1/life-cycles/${id}/analysis`)).body;
+    const res = await owner.get(`/api/v1/life-cycles/${id}/report`);
+    expect(res.status).toBe(200);
+    const { levers, figures } = res.body;
+    // The same interval the Results tab shows (delta method on the analysis).
+    expect(res.body.analysis.uncertainty.lambda).toEqual(analysis.uncertainty.lambda);
+    expect(levers.comparison.rows.map((r: { name: string }) => r.name)).toEqual(["Baseline", "Fence the road", "Head-start juveniles"]);
+    // Fence: s_a × 1.05 changes λ exactly as re-analysing the changed document does.
+    const fenced = threeStageLifeCycle();
+    fenced.rates = fenced.rates.map((r) => (r.name === "s_a" ? { ...r, value: r.value * 1.05 } : r));
+    const direct = (await owner.post("/api/v1/analyze", { document: fenced })).body.lambda;
+    expect(levers.comparison.rows[1].planned.lambda).toBeCloseTo(direct, 12);
+    expect(levers.comparison.rows[1].deltaLambdaPerCost).toBeCloseTo((direct - analysis.lambda) / 40, 12);
+    expect(levers.topLevers.length).toBeGreaterThan(0);
+    expect(levers.topLevers.length).toBeLessThanOrEqual(8);
+    expect(figures.scenarios).toMatch(/^<svg/);
+
+    const { text } = await pdfText((await getPdf(`/api/v1/life-cycles/${id}/report.pdf`)).body as Buffer);
+    const u = analysis.uncertainty.lambda;
+    expect(text).toContain(`interval ${formatLambda(u.lower)} – ${formatLambda(u.upper)}`);
+    expect(text).toContain("Fence the road");
+    expect(text).toContain(formatLambda(direct));
+    expect(text).toContain("Not reviewed yet.");
+  });
+
+  it("shows the review status with each approval", async () => {
+    const reviewer = await signUpAgent(server, { name: "Rowan Reviewer" });
+    await server.db.insert(memberships).values({ studyId, userId: reviewer.user.id, role: "reviewer" });
+    const id = (await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { document: threeStageLifeCycle({ name: "Reviewed" }) })).body.id;
+    const snap = (await owner.post(`/api/v1/life-cycles/${id}/snapshots`, { message: "for review" })).body;
+    expect((await owner.post(`/api/v1/life-cycles/${id}/reviews`, { snapshotId: snap.id, reviewerIds: [reviewer.user.id] })).status).toBe(201);
+    const decided = await reviewer.post(`/api/v1/life-cycles/${id}/reviews/decision`, { snapshotId: snap.id, decision: "approved", summary: "Rates match the 2026 survey." });
+    expect(decided.status).toBe(200);
+    const res = await owner.get(`/api/v1/life-cycles/${id}/report`);
+    expect(res.body.review.status).toMatchObject({ state: "approved", approvals: 1, snapshotNumber: 1, changedSinceApproval: false });
+    const { text } = await pdfText((await getPdf(`/api/v1/life-cycles/${id}/report.pdf`)).body as Buffer);
+    expect(text).toContain("Approved. Snapshot #1: 1 approval, 0 requests for changes, 0 pending.");
+    expect(text).toContain("Rowan Reviewer");
+    expect(text).toContain("Rates match the 2026 survey.");
+    await server.db.delete(memberships).where(eq(memberships.userId, reviewer.user.id));
   });
 });
 

@@ -7,7 +7,7 @@ import type { ReactNode } from "react";
 import { formatLambda, formatNumber, formatPercent } from "../../../shared/format/number-format";
 import { censusNote } from "../../../shared/format/verdict";
 import type { LifeCycleReport } from "../../../shared/report/model";
-import { dateText, describeSource, uncertaintyText } from "../../../shared/report/text";
+import { dateText, describeSource, lambdaIntervalText, leverRows, reviewRows, reviewStatusText, scenarioRows, uncertaintyText } from "../../../shared/report/text";
 
 const svgSrc = (svg: string) => `data:image/svg+xml;charset=utf-8,${encodeURIComponent(svg)}`;
 
@@ -30,6 +30,8 @@ function Figure({ svg, alt, caption }: { svg: string; alt: string; caption: stri
     </figure>
   );
 }
+
+const tableOf = (t: { header: string[]; rows: string[][] }) => ({ header: t.header, rows: t.rows });
 
 function Table({ caption, header, rows, small }: { caption: string; header: string[]; rows: ReactNode[][]; small?: boolean }) {
   return (
@@ -109,7 +111,11 @@ export function ReportDocument({ report: r }: { report: LifeCycleReport }) {
                 The population is {r.verdict.headline} once its stage structure has settled.{r.verdict.detail ? ` ${r.verdict.detail}` : ""}
               </p>
             )}
-            <p className="text-sm text-ink/75">No interval for λ from data: the rates’ uncertainty is listed below; a Risk run shows the effect of variation over time.</p>
+            {lambdaIntervalText(a) ? (
+              <p data-testid="report-lambda-interval">{lambdaIntervalText(a)}</p>
+            ) : (
+              <p className="text-sm text-ink/75">No interval for λ: no vital rate carries an SE, a CI or counts. A Risk run shows the effect of variation over time.</p>
+            )}
             <p className="text-sm text-ink/75">{censusNote(r.document.census)}</p>
           </>
         ) : (
@@ -201,6 +207,39 @@ export function ReportDocument({ report: r }: { report: LifeCycleReport }) {
           </Block>
         </>
       )}
+
+      {r.levers && (
+        <Block title="Levers" id="report-levers">
+          {r.levers.problem && <p>No levers: {r.levers.problem}</p>}
+          {r.levers.comparison ? (
+            <>
+              <p>The life cycle’s scenarios side by side: λ after each scenario’s planned changes, and the change from the baseline.</p>
+              <Table caption="Scenarios compared" small {...tableOf(scenarioRows(r.levers))} />
+              {r.figures.scenarios && (
+                <Figure svg={r.figures.scenarios} alt="Bar chart of λ for the baseline and each scenario, with λ = 1 marked." caption="λ of the baseline (ink) and of each scenario (green at or above 1, clay below); dashed: λ = 1." />
+              )}
+            </>
+          ) : (
+            !r.levers.problem && <p>No scenarios yet: they are built on the Levers tab.</p>
+          )}
+          {r.levers.topLevers.length > 0 && (
+            <>
+              <p>
+                The vital rates and matrix entries that move λ most, each changed alone by {Math.round(r.levers.relativeChange * 100)} % (exact change in λ, not a linear estimate):
+              </p>
+              <Table caption="Strongest levers" small {...tableOf(leverRows(r.levers))} />
+            </>
+          )}
+          <p className="text-sm text-ink/75">Levers compare modelled changes; whether an action can achieve them is a question for field evidence and the responsible authority.</p>
+        </Block>
+      )}
+
+      <Block title="Review" id="report-review">
+        <p className={r.review.status.state === "none" ? "" : "font-bold"} data-testid="report-review-status">
+          {reviewStatusText(r.review)}
+        </p>
+        {r.review.reviews.length > 0 && <Table caption="Reviews" small {...tableOf(reviewRows(r.review))} />}
+      </Block>
 
       {r.risk && (
         <Block title="Risk" id="report-risk">
