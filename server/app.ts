@@ -11,6 +11,7 @@ import { csrfProtection } from "./auth/csrf";
 import type { Config } from "./config";
 import type { Database } from "./db/client";
 import { apiNotFound, errorHandler, HttpError } from "./http/errors";
+import { storableText } from "./http/storable-text";
 import type { Mailer } from "./mail/mailer";
 import { accountRoutes } from "./routes/account";
 import { authRoutes } from "./routes/auth";
@@ -67,6 +68,7 @@ export function createApp(deps: AppDeps): Express {
 
   const api = express.Router();
   api.use(express.json({ limit: JSON_LIMIT }));
+  api.use(storableText);
   api.use(cookieParser());
   const PgStore = connectPgSimple(session);
   api.use(
