@@ -82,12 +82,14 @@ export function createApp(deps: AppDeps): Express {
       cookie: { httpOnly: true, sameSite: "lax", secure: config.publicUrl.startsWith("https:"), maxAge: 14 * 86_400_000 },
     }),
   );
-  passport.serializeUser((user, done) => done(null, user.id));
-  passport.deserializeUser((id: string, done) => {
+  // One Passport per app: the module's shared instance would keep the first app's database lookup for every app in the process.
+  const authn = new passport.Passport();
+  authn.serializeUser((user, done) => done(null, user.id));
+  authn.deserializeUser((id: string, done) => {
     findUserById(db, id).then((u) => done(null, u ?? false), done);
   });
-  api.use(passport.initialize());
-  api.use(passport.session());
+  api.use(authn.initialize());
+  api.use(authn.session());
   // Scripts authenticate with `Authorization: Bearer <token>`; such requests carry no cookie credentials.
   api.use(async (req, _res, next) => {
     const header = req.get("authorization");

@@ -35,6 +35,8 @@ export type Config = {
   authRateLimit: { windowMs: number; max: number };
   /** Largest Study export, in bytes of the files before compression. */
   exportLimitBytes: number;
+  /** API tokens one account may mint per window. */
+  tokenRateLimit: { windowMs: number; max: number };
 };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -61,5 +63,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     staticDir: e.STATIC_DIR,
     authRateLimit: { windowMs: 15 * 60_000, max: 20 },
     exportLimitBytes: Math.round(e.EXPORT_LIMIT_MB * 1_048_576),
+    tokenRateLimit: { windowMs: 60 * 60_000, max: 20 },
   };
 }

@@ -31,6 +31,10 @@ export const SignUpSchema = z.strictObject({
 });
 export type SignUp = z.infer<typeof SignUpSchema>;
 
+/** Opening the link e-mailed at sign-up. */
+export const SignUpConfirmSchema = z.strictObject({ token: z.string().min(1, "The link has no token.").max(200) });
+export type SignUpConfirm = z.infer<typeof SignUpConfirmSchema>;
+
 export const SignInSchema = z.strictObject({
   email: EmailSchema,
   password: z.string().min(1, "Enter your password.").max(MAX_PASSWORD_LENGTH),

@@ -9,6 +9,7 @@ export const routePatterns = {
   home: "/",
   signIn: "/sign-in",
   signUp: "/sign-up",
+  confirmSignUp: "/sign-up/confirm",
   forgotPassword: "/forgot-password",
   resetPassword: "/reset-password",
   invitation: "/invitations/:token",
@@ -37,6 +38,7 @@ export const paths = {
   /** `invitation`: token of the invitation the new account accepts on creation. */
   signUp: (options: { next?: string | null; invitation?: string | null } = {}) =>
     withSearch(routePatterns.signUp, { invitation: options.invitation, next: options.next }),
+  confirmSignUp: (token?: string) => withSearch(routePatterns.confirmSignUp, { token }),
   forgotPassword: () => routePatterns.forgotPassword,
   resetPassword: (token?: string) => withSearch(routePatterns.resetPassword, { token }),
   invitation: (token: string) => generatePath(routePatterns.invitation, { token }),

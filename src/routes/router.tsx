@@ -60,6 +60,10 @@ export const routes: RouteObject[] = [
             lazy: () => import("./sign-up").then((m) => ({ Component: m.SignUpPage })),
           },
           {
+            path: routePatterns.confirmSignUp,
+            lazy: () => import("./confirm-sign-up").then((m) => ({ Component: m.ConfirmSignUpPage })),
+          },
+          {
             path: routePatterns.forgotPassword,
             loader: guestOnly,
             lazy: () => import("./forgot-password").then((m) => ({ Component: m.ForgotPasswordPage })),

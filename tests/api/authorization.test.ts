@@ -8,7 +8,7 @@ import { comments, invitations, lifeCycles, memberships, runs, snapshots } from 
 import { unsubscribeToken } from "../../server/services/notifications";
 import { createApiToken } from "../../server/services/api-tokens";
 import { threeStageLifeCycle } from "../factories/life-cycles";
-import { browserAgent, signUpAgent, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
+import { browserAgent, signUpAgent, signUpToken, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
 
 /**
  * The authorisation matrix: every route mounted on the API router must have an
@@ -100,8 +100,17 @@ const MATRIX: Record<string, Entry> = {
     ownAgent: true,
     request: async (ctx) => {
       const email = `signin-${unique()}@example.org`;
-      await (await browserAgent(ctx.server)).post("/api/v1/auth/sign-up", { name: "S", email, password: "long enough password" });
+      await signUpAgent(ctx.server, { email, password: "long enough password" });
       return { path: "/auth/sign-in", body: { email, password: "long enough password" } };
+    },
+  },
+  "POST /auth/sign-up/confirm": {
+    access: "public",
+    ownAgent: true,
+    request: async (ctx) => {
+      const email = `confirm-${unique()}@example.org`;
+      await (await browserAgent(ctx.server)).post("/api/v1/auth/sign-up", { name: "C", email, password: "long enough password" });
+      return { path: "/auth/sign-up/confirm", body: { token: await signUpToken(ctx.server, email) } };
     },
   },
   "POST /auth/sign-out": { access: "public", ownAgent: true, request: async () => ({ path: "/auth/sign-out" }) },
