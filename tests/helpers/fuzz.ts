@@ -139,15 +139,19 @@ export const hostileQuery: fc.Arbitrary<string> = fc.oneof(
   fc.dictionary(fc.string({ maxLength: 8 }), hostileString, { maxKeys: 3 }).map((d) => "?" + new URLSearchParams(d).toString()),
 );
 
-/** Values every leaf of a valid body is swept with, one at a time (see `leafSweep`). */
-export const SWEEP_VALUES: Json[] = ["a\u0000b", "\uD800", "", "x".repeat(100_000), -1, 1e308, 2 ** 31, 0.5, null, true, [], {}];
+/** Values each leaf of a valid body is swept with, by the leaf's type, plus one wrong-typed value in turn. */
+const SWEEP_STRINGS: Json[] = ["a\u0000b", "\uD800", "", "x".repeat(100_000)];
+const SWEEP_NUMBERS: Json[] = [-1, 1e308, 2 ** 31, 0.5];
+const SWEEP_WRONG_TYPE: Json[] = [null, true, [], {}, "1"];
 
-/** A valid body with one leaf replaced, for every leaf and every value of SWEEP_VALUES. */
+/** A valid body with one leaf replaced: for every leaf, the values known to break servers for its type, and one wrong type. */
 export function leafSweep(seed: unknown): Json[] {
   const out: Json[] = [];
-  const count = slots(structuredClone(seed) as Json).length;
-  for (let i = 1; i < count; i++) {
-    for (const value of SWEEP_VALUES) out.push(applyMutation(structuredClone(seed) as Json, { pick: i, op: "replace", value, key: "" }));
+  const leaves = slots(structuredClone(seed) as Json);
+  for (let i = 1; i < leaves.length; i++) {
+    const v = leaves[i]!.value;
+    const values = [...(typeof v === "string" ? SWEEP_STRINGS : typeof v === "number" ? SWEEP_NUMBERS : []), SWEEP_WRONG_TYPE[i % SWEEP_WRONG_TYPE.length]!];
+    for (const value of values) out.push(applyMutation(structuredClone(seed) as Json, { pick: i, op: "replace", value, key: "" }));
   }
   return out;
 }
