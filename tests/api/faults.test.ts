@@ -4,7 +4,6 @@
 // the Runs (tests/api/runs.test.ts, "survives kill -9 of the worker").
 import path from "node:path";
 import { and, eq } from "drizzle-orm";
-import pg from "pg";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { auditEvents, lifeCycles, memberships, snapshots, studies, users } from "../../server/db/schema";
 import { connect } from "../../server/db/client";
