@@ -18,6 +18,7 @@
 // Exit code 1 only when a request failed or the mixed scenario's state is wrong.
 import { spawn, type ChildProcess } from "node:child_process";
 import { createHmac, randomBytes } from "node:crypto";
+import fs from "node:fs";
 import net from "node:net";
 import os from "node:os";
 import path from "node:path";
@@ -37,6 +38,11 @@ const RUNS = arg("runs", 3);
 const CONNECTIONS = arg("connections", 10);
 const WRITERS = 8;
 const SESSION_SECRET = randomBytes(24).toString("hex");
+/** `--cpu-prof`: the server writes a V8 CPU profile to the temp folder on exit (open it in DevTools); its self time per file is listed. */
+const CPU_PROFILE = process.argv.includes("--cpu-prof");
+const PROFILE_DIR = path.join(os.tmpdir(), "sw-load-profile");
+/** `--only=analyze,read,mixed`: run only those scenarios. */
+const ONLY = new Set((process.argv.find((a) => a.startsWith("--only="))?.slice("--only=".length) ?? "analyze,read,mixed").split(","));
 const TARGET_RPS = 1500;
 const TARGET_P99_MS = 50;
 
@@ -95,7 +101,7 @@ function tenStageMatrix(): { matrix: number[][]; fertility: number[][] } {
 }
 
 function startServer(databaseUrl: string, port: number): Promise<ChildProcess> {
-  const child = spawn(process.execPath, ["--import", "tsx", "server/index.ts"], {
+  const child = spawn(process.execPath, [...(CPU_PROFILE ? ["--cpu-prof", "--cpu-prof-dir", PROFILE_DIR] : []), "--import", "tsx", "server/index.ts"], {
     cwd: root,
     env: { ...process.env, NODE_ENV: "production", DATABASE_URL: databaseUrl, PORT: String(port), HOST: "127.0.0.1", SESSION_SECRET, MAIL_OUTBOX: "off", STATIC_DIR: "/nonexistent" },
     stdio: ["ignore", "pipe", "inherit"],
@@ -181,26 +187,34 @@ async function main() {
   console.log(`Load bench: ${os.cpus().length} × ${os.cpus()[0]?.model.trim()}, Node ${process.version}; ${RUNS} runs × ${DURATION} s, ${CONNECTIONS} connections; load average before: ${load()}`);
   console.log(`POST /api/v1/analyze (10 stages, Bearer token; answer ${analyzeBytes} bytes, λ = ${expected.toFixed(4)}):`);
   const analyzeRuns: Figures[] = [];
-  for (let i = 0; i < RUNS; i++) {
+  for (let i = 0; i < (ONLY.has("analyze") ? RUNS : 0); i++) {
     analyzeRuns.push(await cannon({ url: `${base}/api/v1/analyze`, method: "POST", headers: { authorization: `Bearer ${token}`, "content-type": "application/json" }, body: analyzeBody }));
   }
-  const a = report("analyze", analyzeRuns);
-  console.log(`  target ≥ ${TARGET_RPS} req/s and p99 ≤ ${TARGET_P99_MS} ms: ${a.rps >= TARGET_RPS && a.p99 <= TARGET_P99_MS ? "MET" : "MISSED"}`);
+  if (analyzeRuns.length) {
+    const a = report("analyze", analyzeRuns);
+    console.log(`  target ≥ ${TARGET_RPS} req/s and p99 ≤ ${TARGET_P99_MS} ms: ${a.rps >= TARGET_RPS && a.p99 <= TARGET_P99_MS ? "MET" : "MISSED"}`);
+  }
 
   console.log(`GET /api/v1/life-cycles/:id (the editor's read, session cookie; answer ${readBytes} bytes):`);
   const readRuns: Figures[] = [];
-  for (let i = 0; i < RUNS; i++) readRuns.push(await cannon({ url: `${base}/api/v1/life-cycles/${lc!.id}`, headers: { cookie } }));
-  report("read", readRuns);
+  for (let i = 0; i < (ONLY.has("read") ? RUNS : 0); i++) readRuns.push(await cannon({ url: `${base}/api/v1/life-cycles/${lc!.id}`, headers: { cookie } }));
+  if (readRuns.length) report("read", readRuns);
 
-  console.log(`Mixed: readers on ${CONNECTIONS} connections while ${WRITERS} writers save the same life cycle (${DURATION} s):`);
-  const { failures: mixedFailures } = await mixed(base, token, cookie, lc!.id, database);
+  let mixedFailures = 0;
+  if (ONLY.has("mixed")) {
+    console.log(`Mixed: readers on ${CONNECTIONS} connections while ${WRITERS} writers save the same life cycle (${DURATION} s):`);
+    mixedFailures = (await mixed(base, token, cookie, lc!.id, database)).failures;
+  }
 
   const failed = [...analyzeRuns, ...readRuns].some((f) => f.errors > 0 || f.non2xx > 0) || mixedFailures > 0;
   console.log(`load average after: ${load()}`);
   await database.pool.end();
+  const exited = new Promise((resolve) => server!.once("exit", resolve));
   server.kill("SIGTERM");
+  await exited;
   server = undefined;
   cluster.stop();
+  if (CPU_PROFILE) summariseProfile();
   process.exitCode = failed ? 1 : 0;
 }
 
@@ -253,6 +267,33 @@ async function mixed(base: string, token: string, cookie: string, lifeCycleId: s
   console.log(`  reads meanwhile: ${readers.requests.average.toFixed(0)} req/s, p50 ${readers.latency.p50} ms, p99 ${readers.latency.p99} ms, errors ${readers.errors + readers.timeouts}, non-2xx ${readers.non2xx} (load average ${load()})`);
   console.log(`  landed versions consecutive without gaps or repeats: ${versionsConsecutive}; stored life cycle = last landed save: ${finalIsLast}; one activity row per landed save: ${oneEventEach}`);
   return { failures };
+}
+
+/** Self time by source file (and the heaviest functions) of the newest profile in PROFILE_DIR. */
+function summariseProfile() {
+  const files = fs.readdirSync(PROFILE_DIR).filter((f) => f.endsWith(".cpuprofile")).map((f) => path.join(PROFILE_DIR, f));
+  // The main thread writes the largest profile (tsx's loader thread writes one too).
+  const newest = files.sort((a, b) => fs.statSync(b).size - fs.statSync(a).size)[0];
+  if (!newest) return;
+  type Node = { id: number; callFrame: { functionName: string; url: string; lineNumber: number }; hitCount?: number };
+  const profile = JSON.parse(fs.readFileSync(newest, "utf8")) as { nodes: Node[]; samples: number[]; timeDeltas: number[] };
+  const byId = new Map(profile.nodes.map((n) => [n.id, n]));
+  const selfByFile = new Map<string, number>();
+  const selfByFunction = new Map<string, number>();
+  profile.samples.forEach((id, i) => {
+    const n = byId.get(id)!;
+    const dt = profile.timeDeltas[i] ?? 0;
+    const file = n.callFrame.url.replace(/^file:\/\//, "").replace(root + "/", "") || `(${n.callFrame.functionName || "native"})`;
+    const short = file.includes("node_modules/") ? file.replace(/.*node_modules\/((@[^/]+\/)?[^/]+).*/, "$1") : file;
+    selfByFile.set(short, (selfByFile.get(short) ?? 0) + dt);
+    const fn = `${n.callFrame.functionName || "(anonymous)"} ${short}:${n.callFrame.lineNumber + 1}`;
+    selfByFunction.set(fn, (selfByFunction.get(fn) ?? 0) + dt);
+  });
+  const total = [...selfByFile.values()].reduce((a, b) => a + b, 0);
+  console.log(`CPU profile ${newest} (${(total / 1e6).toFixed(1)} s sampled), self time by package or file:`);
+  for (const [f, t] of [...selfByFile.entries()].sort((a, b) => b[1] - a[1]).slice(0, 25)) console.log(`  ${((100 * t) / total).toFixed(1).padStart(5)} %  ${f}`);
+  console.log("heaviest functions:");
+  for (const [f, t] of [...selfByFunction.entries()].sort((a, b) => b[1] - a[1]).slice(0, 20)) console.log(`  ${((100 * t) / total).toFixed(1).padStart(5)} %  ${f}`);
 }
 
 main().catch((err) => {

@@ -38,6 +38,9 @@ async function seed(db: ReturnType<typeof connect>["db"]) {
 
 const json = (token: string) => ({ authorization: `Bearer ${token}`, "content-type": "application/json" });
 
+// Each test starts the real server one to three times (a few seconds each on a busy machine).
+const PROCESS_TEST_MS = 180_000;
+
 describe("kill -9 of the web server inside a save's transaction", () => {
   let database: Awaited<ReturnType<typeof createTestDatabase>>;
   beforeAll(async () => {
@@ -72,7 +75,7 @@ describe("kill -9 of the web server inside a save's transaction", () => {
     const res = await save(again);
     expect(res.status).toBe(200);
     expect(await state(lifeCycleId)).toEqual({ version: 2, name: "Lost save", updates: 1, snapshots: 1 });
-  });
+  }, PROCESS_TEST_MS);
 
   it("killed after the commit, before answering: after restart the save is wholly present (row and activity)", async () => {
     const { lifeCycleId, token } = await seed(database.db);
@@ -85,7 +88,7 @@ describe("kill -9 of the web server inside a save's transaction", () => {
     const retry = await fetch(`${w.url}/api/v1/life-cycles/${lifeCycleId}`, { method: "PUT", headers: json(token), body: JSON.stringify({ version: 1, document: threeStageLifeCycle({ name: "Committed save" }) }) });
     expect(retry.status).toBe(409);
     expect((await retry.json()).current.version).toBe(2);
-  });
+  }, PROCESS_TEST_MS);
 
   it("killed in a snapshot restore between the life cycle (and its activity row) and the new snapshot: nothing of the restore remains", async () => {
     const { lifeCycleId, snapshotId, token } = await seed(database.db);
@@ -95,7 +98,7 @@ describe("kill -9 of the web server inside a save's transaction", () => {
     expect(await state(lifeCycleId)).toEqual({ version: 1, name: "Three-stage test", updates: 0, snapshots: 1 });
     const restored = await database.db.select().from(auditEvents).where(and(eq(auditEvents.action, "snapshot.created")));
     expect(restored).toEqual([]);
-  });
+  }, PROCESS_TEST_MS);
 });
 
 /** The parts of scripts/lib/setup.mjs (dependency-free, untyped) used here. */
@@ -186,5 +189,5 @@ describe("PostgreSQL stopped and restarted under load", () => {
     const body = await (await fetch(`${w.url}/api/v1/health`)).json();
     expect(body).toEqual({ ok: true });
     expect(w.output()).not.toMatch(/500 on /);
-  }, 120_000);
+  }, PROCESS_TEST_MS);
 });
