@@ -34,7 +34,7 @@ interface Fixture {
   params: Record<string, string>;
   body?: unknown;
   /** The owner's own cookie session for this route (sign-in, sign-up and sign-out replace or end it). */
-  cookie: Record<string, string>;
+  cookie: { cookie: string; "x-csrf-token": string };
 }
 
 async function fixtureFor(route: MountedRoute): Promise<Fixture> {
