@@ -1,7 +1,7 @@
 import type { AddressInfo } from "node:net";
 import type { Server } from "node:http";
 import path from "node:path";
-import { desc } from "drizzle-orm";
+import { and, desc, eq, like } from "drizzle-orm";
 import supertest from "supertest";
 import { createApp } from "../../server/app";
 import { loadConfig, type Config } from "../../server/config";
@@ -106,9 +106,14 @@ export async function signUpAgent(server: TestServer, overrides: Partial<{ name:
   return { ...a, user: { ...user, id: done.body.user.id as string } };
 }
 
-/** The token of the newest sign-up link e-mailed to `email`. */
+/**
+ * The token of the newest sign-up link e-mailed to `email`. The message is
+ * taken out of the outbox, so a later `mailTo` of this person finds only mail
+ * that the test's own actions caused (some are sent after their answer).
+ */
 export async function signUpToken(server: TestServer, email: string): Promise<string> {
   const link = (await server.mailTo(email, 5000, /Finish creating/)).links.find((l) => l.includes("/sign-up/confirm?token="));
   if (!link) throw new Error(`The newest e-mail to ${email} has no sign-up link.`);
+  await server.db.delete(mailOutbox).where(and(eq(mailOutbox.to, email), like(mailOutbox.subject, "Finish creating%")));
   return new URL(link).searchParams.get("token")!;
 }
