@@ -23,6 +23,7 @@ import {
   ProfileUpdateSchema,
   SessionInfoSchema,
   SignInSchema,
+  SignUpConfirmSchema,
   SignUpSchema,
   StudyCreateSchema,
   StudySchema,
@@ -131,7 +132,29 @@ export const OPERATIONS: Operation[] = [
 
   // Sign-in and accounts
   { method: "get", path: "/auth/session", tag: "Account", summary: "Who is signed in (null when nobody)", access: "public", responses: [ok("The session.", named("SessionInfo", SessionInfoSchema))] },
-  { method: "post", path: "/auth/sign-up", tag: "Account", summary: "Create an account and sign in", access: "public", body: named("SignUp", SignUpSchema), responses: [created("Signed up and in.", { description: "{ user, joinedStudyId? }" })] },
+  {
+    method: "post",
+    path: "/auth/sign-up",
+    tag: "Account",
+    summary: "Start an account: e-mails a link that creates it",
+    description:
+      "Answers 202 with the same message whether or not the address already has an account (the e-mail tells them apart: a link that creates the account, or a note to the owner to sign in or reset). Only with an invitation token sent to that very address is the account created at once (201, signed in).",
+    access: "public",
+    body: named("SignUp", SignUpSchema),
+    responses: [
+      { status: 202, description: "A message is on its way to the address.", json: { description: "{ message }" } },
+      created("Created and signed in (an invitation sent to this address).", { description: "{ user, joinedStudyId }" }),
+    ],
+  },
+  {
+    method: "post",
+    path: "/auth/sign-up/confirm",
+    tag: "Account",
+    summary: "Create the account with the e-mailed link's token, and sign in",
+    access: "public",
+    body: named("SignUpConfirm", SignUpConfirmSchema),
+    responses: [created("Created and signed in.", { description: "{ user, joinedStudyId? }" })],
+  },
   { method: "post", path: "/auth/sign-in", tag: "Account", summary: "Sign in with e-mail and password (sets the session cookie)", access: "public", body: named("SignIn", SignInSchema), responses: [ok("Signed in.", { description: "{ user }" })] },
   { method: "post", path: "/auth/sign-out", tag: "Account", summary: "Sign out", access: "public", responses: [noContent("Signed out.")] },
   { method: "post", path: "/auth/password-reset/request", tag: "Account", summary: "E-mail a password-reset link", access: "public", body: named("PasswordResetRequest", PasswordResetRequestSchema), responses: [{ status: 202, description: "Sent if an account uses the address.", json: { description: "{ message }" } }] },

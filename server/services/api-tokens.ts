@@ -47,18 +47,7 @@ export async function revokeApiToken(db: Db, userId: string, tokenId: string): P
     .where(and(eq(apiTokens.id, tokenId), eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt)))
     .returning({ id: apiTokens.id });
   if (rows.length === 0) throw notFound("No such token.");
-  for (const [hash, entry] of recentTokens) if (entry.tokenId === tokenId) recentTokens.delete(hash);
 }
-
-/**
- * Tokens found valid in the last few seconds, by hash: a script calling in a
- * loop costs no database round trip per request. A revocation through this
- * process takes effect at once; one made by another server process (or
- * straight in the database) within TOKEN_CACHE_MS. Expiry is checked on every use.
- */
-export const TOKEN_CACHE_MS = 5_000;
-const MAX_CACHED_TOKENS = 10_000;
-const recentTokens = new Map<string, { tokenId: string; checkedAt: number; expiresAt: number | null; user: SessionUser; scope: ApiTokenScope }>();
 
 export type TokenCheck =
   | { ok: true; user: SessionUser; scope: ApiTokenScope }
@@ -66,13 +55,6 @@ export type TokenCheck =
 
 /** Who a Bearer token speaks for and what it may do; unknown, revoked and expired tokens are refused with a reason. */
 export async function checkApiToken(db: Db, token: string): Promise<TokenCheck> {
-  const hash = sha256(token);
-  const now = Date.now();
-  const cached = recentTokens.get(hash);
-  if (cached && now - cached.checkedAt < TOKEN_CACHE_MS && (cached.expiresAt === null || cached.expiresAt > now)) {
-    return { ok: true, user: cached.user, scope: cached.scope };
-  }
-  recentTokens.delete(hash);
   const [row] = await db
     .select({
       tokenId: apiTokens.id,
@@ -86,7 +68,7 @@ export async function checkApiToken(db: Db, token: string): Promise<TokenCheck> 
     })
     .from(apiTokens)
     .innerJoin(users, eq(users.id, apiTokens.userId))
-    .where(eq(apiTokens.tokenHash, hash));
+    .where(eq(apiTokens.tokenHash, sha256(token)));
   if (!row) return { ok: false, reason: "unknown", message: "The API token is not valid: it may be mistyped. Mint a new one in Settings." };
   if (row.revokedAt) return { ok: false, reason: "revoked", message: "The API token was revoked. Mint a new one in Settings." };
   if (row.expiresAt && row.expiresAt.getTime() <= Date.now()) {
@@ -96,9 +78,5 @@ export async function checkApiToken(db: Db, token: string): Promise<TokenCheck> 
   if (!row.lastUsedAt || Date.now() - row.lastUsedAt.getTime() > 60_000) {
     await db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.tokenId));
   }
-  const user = { id: row.id, name: row.name, email: row.email };
-  const scope: ApiTokenScope = row.scope === "read" ? "read" : "read-write";
-  if (recentTokens.size >= MAX_CACHED_TOKENS) recentTokens.clear();
-  recentTokens.set(hash, { tokenId: row.tokenId, checkedAt: now, expiresAt: row.expiresAt?.getTime() ?? null, user, scope });
-  return { ok: true, user, scope };
+  return { ok: true, user: { id: row.id, name: row.name, email: row.email }, scope: row.scope === "read" ? "read" : "read-write" };
 }
