@@ -9,10 +9,11 @@ import { eq } from "drizzle-orm";
 import fc from "fast-check";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { sha256 } from "../../server/auth/secrets";
-import { invitations, lifeCycles, memberships, runs, snapshots, studies, users } from "../../server/db/schema";
+import { comments, invitations, lifeCycles, memberships, runs, snapshots, studies, users } from "../../server/db/schema";
 import { createApiToken } from "../../server/services/api-tokens";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 import { hostileParam, hostileQuery, hostileValue, leafSweep, mutatedBody, rawBodies } from "../helpers/fuzz";
+import { sampleFromSchema } from "../helpers/openapi-sample";
 import { mountedRoutes, sessionHeaders, type MountedRoute } from "../helpers/routes";
 import { signUpAgent, startTestServer, type TestServer } from "../helpers/server";
 
@@ -43,7 +44,8 @@ async function fixtureFor(route: MountedRoute): Promise<Fixture> {
   const studyId = study!.id;
   await db.insert(memberships).values({ studyId, userId: owner.user.id, role: "owner" });
   const [member] = await db.insert(users).values({ email: `member-${randomBytes(6).toString("hex")}@example.org`, name: "Member", passwordHash: "x" }).returning();
-  await db.insert(memberships).values({ studyId, userId: member!.id, role: "viewer" });
+  // A reviewer, so review requests may name them.
+  await db.insert(memberships).values({ studyId, userId: member!.id, role: "reviewer" });
   const document = threeStageLifeCycle();
   const [lc] = await db.insert(lifeCycles).values({ studyId, name: document.name, document, schemaVersion: 1 }).returning();
   if (route.key === "POST /life-cycles/:lifeCycleId/undelete") await db.update(lifeCycles).set({ deletedAt: new Date() }).where(eq(lifeCycles.id, lc!.id));
@@ -53,6 +55,10 @@ async function fixtureFor(route: MountedRoute): Promise<Fixture> {
   const [inv] = await db
     .insert(invitations)
     .values({ studyId, email: `invitee-${randomBytes(6).toString("hex")}@example.org`, role: "viewer", tokenHash: sha256(invitationToken), expiresAt: new Date(Date.now() + 86_400_000) })
+    .returning();
+  const [thread] = await db
+    .insert(comments)
+    .values({ studyId, lifeCycleId: lc!.id, anchor: { kind: "stage", id: "st_j" }, anchorLabel: "stage Juvenile", body: "Where does s_j come from?", authorId: owner.user.id })
     .returning();
   const token = await createApiToken(db, owner.user.id, "to revoke");
   const params: Record<string, string> = {
@@ -64,16 +70,19 @@ async function fixtureFor(route: MountedRoute): Promise<Fixture> {
     invitationId: inv!.id,
     token: invitationToken,
     tokenId: token.id,
+    commentId: thread!.id,
   };
-  return { params, body: seedBody(route, lc!.id), cookie: await sessionHeaders(server, owner.user.id) };
+  return { params, body: seedBody(route, params), cookie: await sessionHeaders(server, owner.user.id) };
 }
 
 /** A valid body for each route that takes one: the fuzzer mutates it to reach past the outer checks. */
-function seedBody(route: MountedRoute, lifeCycleId: string): unknown {
+function seedBody(route: MountedRoute, params: Record<string, string>): unknown {
+  const { lifeCycleId, snapshotId, userId } = params as Record<string, string>;
   const n = randomBytes(4).toString("hex");
   const seeds: Record<string, unknown> = {
     "POST /auth/sign-up": { name: "Fuzz Person", email: `fuzz-${n}@example.org`, password: "long enough password" },
     "POST /auth/sign-in": { email: owner.user.email, password: "not the password" },
+    "POST /auth/sign-up/confirm": { token: "made-up" },
     "POST /auth/password-reset/request": { email: `nobody-${n}@example.org` },
     "POST /auth/password-reset/confirm": { token: "made-up", password: "long enough password" },
     "PATCH /account/profile": { name: "Fuzzed Owner" },
@@ -92,12 +101,31 @@ function seedBody(route: MountedRoute, lifeCycleId: string): unknown {
       kind: "risk",
       settings: { environment: { kind: "matrices", lifeCycleIds: [lifeCycleId], weights: [1] }, initial: [10, 5, 2], horizon: 5, replicates: 10, threshold: { value: 1 } },
     },
+    "POST /life-cycles/:lifeCycleId/comments": { anchor: { kind: "cell", to: "st_s", from: "st_j" }, body: "Is s_j from the 2024 survey?", mentions: [userId] },
+    "POST /comments/:commentId/replies": { body: "Yes, 41 of 120 marked juveniles.", mentions: [] },
+    "PATCH /comments/:commentId": { body: "Where does s_j come from (edited)?", mentions: [] },
+    "POST /life-cycles/:lifeCycleId/reviews": { snapshotId, reviewerIds: [userId], message: "Please check the rates." },
+    "POST /life-cycles/:lifeCycleId/reviews/decision": { snapshotId, decision: "approved", summary: "Sound." },
+    "PUT /account/notifications": { mode: "digest" },
+    "POST /notifications/unsubscribe": { token: `${userId}.made-up` },
+    "POST /levers": { document: threeStageLifeCycle(), relativeChange: 0.1, target: 1, breakEven: true },
+    "POST /ltre": { reference: threeStageLifeCycle(), comparison: threeStageLifeCycle({ rates: threeStageLifeCycle().rates.map((r) => (r.name === "f" ? { ...r, value: 2.1 } : r)) }) },
     "POST /analyze": { matrix: [[0, 1.5, 2], [0.6, 0, 0], [0, 0.333, 0]], fertility: [[0, 1.5, 2], [0, 0, 0], [0, 0, 0]], stages: ["a", "b", "c"], initial: [10, 5, 1], projectionSteps: 20 },
   };
   if (route.key in seeds) return seeds[route.key];
-  // A write route nobody seeded yet still gets random bodies (and an empty object to mutate).
-  return route.method === "GET" ? undefined : {};
+  if (route.method === "GET" || route.method === "DELETE") return undefined;
+  // A write route nobody seeded yet: an example of its body from the OpenAPI document, else an empty object to mutate.
+  const operation = openApi?.paths[route.path.replace(/:(\w+)/g, "{$1}")]?.[route.method.toLowerCase()];
+  const body = operation?.requestBody?.content?.["application/json"]?.schema;
+  // Routes the document says take no body still get random ones; only the others are listed.
+  if (!operation || body) unseeded.push(`${route.key}${body ? " (body from the OpenAPI document)" : ""}`);
+  return body ? sampleFromSchema(body, openApi!) : {};
 }
+
+type OpenApiDocument = { paths: Record<string, Record<string, { requestBody?: { content?: Record<string, { schema?: object }> } }>>; components?: { schemas?: Record<string, object> } };
+let openApi: OpenApiDocument | null = null;
+/** Write routes without a hand-written seed body (listed in the output, so a thin one is noticed). */
+const unseeded: string[] = [];
 
 type Case =
   | { kind: "json"; body: unknown; params: Record<string, string>; query: string; cookie: boolean }
@@ -189,6 +217,8 @@ beforeAll(async () => {
   server = await startTestServer();
   owner = await signUpAgent(server);
   bearer = (await createApiToken(server.db, owner.user.id, "fuzz")).token;
+  const doc = await fetch(`${server.url}/api/v1/openapi.json`);
+  openApi = doc.ok ? ((await doc.json()) as OpenApiDocument) : null;
 }, 120_000);
 afterAll(async () => {
   await server?.close();
@@ -227,6 +257,7 @@ describe("fuzzing every mounted /api/v1 route", () => {
       }
       const statuses = [...tally.byStatus.entries()].sort((a, b) => a[0] - b[0]).map(([s, n]) => `${s}×${n}`).join(" ");
       console.log(`fuzz: ${tally.cases} cases over ${routes.length} routes (seed ${SEED}); statuses ${statuses}; slowest ${tally.slowest.toFixed(0)} ms`);
+      if (unseeded.length) console.log(`fuzz: write routes without a seed body in fuzz.test.ts: ${unseeded.join("; ")}`);
       expect(problems).toEqual([]);
       if (SCALE >= 1) expect(tally.cases).toBeGreaterThanOrEqual(10_000);
     },
