@@ -1,12 +1,16 @@
-// `npm run token -- <email> [name]`: mints a personal API token for scripts and administrators.
+// `npm run token -- <email> [name] [--read] [--days N]`: mints a personal API token for scripts and administrators.
+// Without --read the token may read and write; without --days it never expires.
 // Needs the database that `npm start` runs (or DATABASE_URL).
+import { parseArgs } from "node:util";
 import { connect, databaseUrlFromEnv } from "../server/db/client";
 import { createApiToken } from "../server/services/api-tokens";
 import { findUserByEmail } from "../server/services/users";
 
-const [email, name = "command line"] = process.argv.slice(2);
-if (!email) {
-  console.error("Usage: npm run token -- <email> [token name]");
+const { values, positionals } = parseArgs({ allowPositionals: true, options: { read: { type: "boolean" }, days: { type: "string" } } });
+const [email, name = "command line"] = positionals;
+const days = values.days === undefined ? null : Number(values.days);
+if (!email || (days !== null && !(Number.isInteger(days) && days >= 1 && days <= 366))) {
+  console.error("Usage: npm run token -- <email> [token name] [--read] [--days 1–366]");
   process.exit(2);
 }
 const url = databaseUrlFromEnv();
@@ -17,9 +21,10 @@ try {
     console.error(`No account uses ${email}.`);
     process.exitCode = 1;
   } else {
-    const token = await createApiToken(db, user.id, name);
+    const token = await createApiToken(db, user.id, name, { scope: values.read ? "read" : "read-write", expiresInDays: days });
     console.log(token.token);
-    console.error(`Token “${name}” for ${user.email}. It is shown once: keep it secret; revoke it in Settings.`);
+    const expiry = token.expiresAt ? `expires ${token.expiresAt.slice(0, 10)}` : "never expires";
+    console.error(`Token “${name}” for ${user.email} (${token.scope}, ${expiry}). It is shown once: keep it secret; revoke it in Settings.`);
   }
 } catch (err) {
   console.error(`Could not reach the database at ${url.replace(/\/\/[^@]*@/, "//")}: ${(err as Error).message}. Is \`npm start\` running?`);

@@ -11,6 +11,7 @@ import { csrfProtection } from "./auth/csrf";
 import type { Config } from "./config";
 import type { Database } from "./db/client";
 import { apiNotFound, errorHandler, HttpError } from "./http/errors";
+import { storableText } from "./http/storable-text";
 import type { Mailer } from "./mail/mailer";
 import { accountRoutes } from "./routes/account";
 import { authRoutes } from "./routes/auth";
@@ -19,11 +20,13 @@ import { leverRoutes } from "./routes/levers";
 import { fieldDataRoutes } from "./routes/field-data";
 import { lifeCycleRoutes } from "./routes/life-cycles";
 import { reviewRoutes } from "./routes/review";
+import { reportRoutes } from "./routes/reports";
 import { runRoutes } from "./routes/runs";
 import type { RunKinds } from "./runs/kinds";
 import type { JobSender } from "./runs/queue";
 import { studyRoutes } from "./routes/studies";
-import { userForApiToken } from "./services/api-tokens";
+import { tokenScopeCheck } from "./auth/token-scope";
+import { checkApiToken } from "./services/api-tokens";
 import { findUserById } from "./services/users";
 
 export interface AppDeps extends Database {
@@ -53,6 +56,7 @@ export function createApiRouter(deps: AppDeps): Router {
   reviewRoutes(r, deps);
   leverRoutes(r, deps);
   fieldDataRoutes(r, deps);
+  reportRoutes(r, deps);
   if (deps.config.mailOutbox) devMailRoutes(r, deps);
   return r;
 }
@@ -66,6 +70,7 @@ export function createApp(deps: AppDeps): Express {
 
   const api = express.Router();
   api.use(express.json({ limit: JSON_LIMIT }));
+  api.use(storableText);
   api.use(cookieParser());
   const PgStore = connectPgSimple(session);
   api.use(
@@ -79,21 +84,25 @@ export function createApp(deps: AppDeps): Express {
       cookie: { httpOnly: true, sameSite: "lax", secure: config.publicUrl.startsWith("https:"), maxAge: 14 * 86_400_000 },
     }),
   );
-  passport.serializeUser((user, done) => done(null, user.id));
-  passport.deserializeUser((id: string, done) => {
+  // One Passport per app: the module's shared instance would keep the first app's database lookup for every app in the process.
+  const authn = new passport.Passport();
+  authn.serializeUser((user, done) => done(null, user.id));
+  authn.deserializeUser((id: string, done) => {
     findUserById(db, id).then((u) => done(null, u ?? false), done);
   });
-  api.use(passport.initialize());
-  api.use(passport.session());
+  api.use(authn.initialize());
+  api.use(authn.session());
   // Scripts authenticate with `Authorization: Bearer <token>`; such requests carry no cookie credentials.
   api.use(async (req, _res, next) => {
     const header = req.get("authorization");
     if (!header) return next();
     const match = /^Bearer\s+(\S+)$/i.exec(header);
-    const user = match ? await userForApiToken(db, match[1]!) : null;
-    if (!user) return next(new HttpError(401, "The API token is not valid: it may be mistyped or revoked. Mint a new one in Settings."));
-    req.user = user;
+    if (!match) return next(new HttpError(401, "The Authorization header must be “Bearer <token>”."));
+    const check = await checkApiToken(db, match[1]!);
+    if (!check.ok) return next(new HttpError(401, check.message));
+    req.user = check.user;
     req.authVia = "token";
+    req.tokenScope = check.scope;
     next();
   });
   api.use((req, _res, next) => {
@@ -101,6 +110,7 @@ export function createApp(deps: AppDeps): Express {
     next();
   });
   api.use(csrfProtection(config.sessionSecret, { secureCookie: config.publicUrl.startsWith("https:") }));
+  api.use(tokenScopeCheck);
   api.use(createApiRouter(deps));
   api.use(apiNotFound);
   app.use(API_PREFIX, api);

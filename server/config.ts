@@ -17,6 +17,8 @@ const EnvSchema = z.object({
   /** Serve the Mail outbox page and API (never in production). */
   MAIL_OUTBOX: z.enum(["on", "off"]).optional(),
   STATIC_DIR: z.string().optional(),
+  /** Largest Study export (zip contents before compression), in megabytes. */
+  EXPORT_LIMIT_MB: z.coerce.number().positive().default(200),
 });
 
 export type Config = {
@@ -31,6 +33,10 @@ export type Config = {
   staticDir?: string;
   /** Sign-in and reset attempts allowed per window (per client address and e-mail). */
   authRateLimit: { windowMs: number; max: number };
+  /** Largest Study export, in bytes of the files before compression. */
+  exportLimitBytes: number;
+  /** API tokens one account may mint per window. */
+  tokenRateLimit: { windowMs: number; max: number };
 };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -56,5 +62,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     mailOutbox: e.MAIL_OUTBOX ? e.MAIL_OUTBOX === "on" : e.NODE_ENV !== "production",
     staticDir: e.STATIC_DIR,
     authRateLimit: { windowMs: 15 * 60_000, max: 20 },
+    exportLimitBytes: Math.round(e.EXPORT_LIMIT_MB * 1_048_576),
+    tokenRateLimit: { windowMs: 60 * 60_000, max: 20 },
   };
 }

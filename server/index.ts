@@ -22,7 +22,10 @@ let stopping = false;
 async function stop() {
   if (stopping) return;
   stopping = true;
-  server.close();
+  // Stop accepting, let requests in flight finish (up to 5 s), then drop what is left, and only then close the pool.
+  const closed = new Promise<void>((resolve) => server.close(() => resolve()));
+  server.closeIdleConnections();
+  await Promise.race([closed, new Promise((resolve) => setTimeout(resolve, 5_000))]);
   server.closeAllConnections();
   mailer.close();
   await jobs.stop().catch(() => undefined);

@@ -20,7 +20,8 @@ export function csrfProtection(secret: string, options: { secureCookie: boolean 
   };
   return (req, res, next) => {
     const cookie: string | undefined = req.cookies?.[CSRF_COOKIE];
-    if (!cookie || !valid(cookie)) {
+    // Scripts with a Bearer token never use the cookie: do not mint one for every call.
+    if (req.authVia !== "token" && (!cookie || !valid(cookie))) {
       res.cookie(CSRF_COOKIE, sign(randomBytes(16).toString("base64url")), {
         sameSite: "strict",
         secure: options.secureCookie,

@@ -14,6 +14,8 @@ declare global {
     interface User extends SessionUser {}
     interface Request {
       authVia?: "session" | "token";
+      /** For Bearer requests: what the token may do. */
+      tokenScope?: "read" | "read-write";
     }
     interface Locals {
       access?: { studyId: string; role: Role };

@@ -107,6 +107,29 @@ export const passwordResets = pgTable(
   (t) => [uniqueIndex("password_resets_token_unique").on(t.tokenHash)],
 );
 
+/**
+ * A sign-up waiting for its e-mailed link: the account is created only when
+ * the link is opened, so sign-up answers the same whether or not the address
+ * is registered (no user enumeration).
+ */
+export const signUpRequests = pgTable(
+  "sign_up_requests",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    email: varchar("email", { length: 254 }).notNull(),
+    name: varchar("name", { length: 100 }).notNull(),
+    passwordHash: text("password_hash").notNull(),
+    /** SHA-256 of the token in the link. */
+    tokenHash: varchar("token_hash", { length: 64 }).notNull(),
+    /** The invitation the new account accepts when the link is opened. */
+    invitationId: uuid("invitation_id").references(() => invitations.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
+    usedAt: timestamp("used_at", { withTimezone: true }),
+  },
+  (t) => [uniqueIndex("sign_up_requests_token_unique").on(t.tokenHash), index("sign_up_requests_email_idx").on(t.email)],
+);
+
 export const apiTokens = pgTable(
   "api_tokens",
   {
@@ -120,6 +143,10 @@ export const apiTokens = pgTable(
     createdAt: createdAt(),
     lastUsedAt: timestamp("last_used_at", { withTimezone: true }),
     revokedAt: timestamp("revoked_at", { withTimezone: true }),
+    /** After this moment the token is refused (401); null: it never expires. */
+    expiresAt: timestamp("expires_at", { withTimezone: true }),
+    /** "read" (GET requests and the stateless analysis) or "read-write". Tokens made before scopes existed could write. */
+    scope: varchar("scope", { length: 16 }).notNull().default("read-write"),
   },
   (t) => [uniqueIndex("api_tokens_hash_unique").on(t.tokenHash), index("api_tokens_user_idx").on(t.userId)],
 );

@@ -4,13 +4,14 @@ import {
   PasswordResetConfirmSchema,
   PasswordResetRequestSchema,
   SignInSchema,
+  SignUpConfirmSchema,
   SignUpSchema,
 } from "../../shared/schemas/auth";
 import type { AppDeps } from "../app";
 import { HttpError } from "../http/errors";
-import { acceptInvitation } from "../services/invitations";
 import { confirmPasswordReset, requestPasswordReset } from "../services/password-reset";
-import { createUser, verifyCredentials } from "../services/users";
+import { confirmSignUp, requestSignUp, signUpPendingMessage } from "../services/sign-up";
+import { verifyCredentials } from "../services/users";
 
 export function authRoutes(r: Router, deps: AppDeps): void {
   const { db, config } = deps;
@@ -28,15 +29,24 @@ export function authRoutes(r: Router, deps: AppDeps): void {
     res.json({ user: req.user ?? null });
   });
 
+  // The same answer (202) for a new and a registered address; the e-mail tells them apart. See services/sign-up.ts.
   r.post("/auth/sign-up", limiter, async (req, res) => {
     const input = SignUpSchema.parse(req.body);
-    const { user, joinedStudyId } = await db.transaction(async (tx) => {
-      const user = await createUser(tx, input);
-      const joined = input.invitationToken ? await acceptInvitation(tx, input.invitationToken, user) : null;
-      return { user, joinedStudyId: joined?.studyId };
-    });
-    await login(req, user);
-    res.status(201).json({ user, ...(joinedStudyId ? { joinedStudyId } : {}) });
+    const done = await requestSignUp(db, { mailer: deps.mailer, publicUrl: config.publicUrl }, input);
+    if (!done) {
+      res.status(202).json({ message: signUpPendingMessage(input.email) });
+      return;
+    }
+    await login(req, done.user);
+    res.status(201).json(done);
+  });
+
+  // The link carries 32 random bytes: guessing one is hopeless, so no limit is needed here.
+  r.post("/auth/sign-up/confirm", async (req, res) => {
+    const { token } = SignUpConfirmSchema.parse(req.body);
+    const done = await confirmSignUp(db, token);
+    await login(req, done.user);
+    res.status(201).json(done);
   });
 
   r.post("/auth/sign-in", limiter, async (req, res) => {
@@ -54,8 +64,11 @@ export function authRoutes(r: Router, deps: AppDeps): void {
 
   r.post("/auth/password-reset/request", limiter, async (req, res) => {
     const input = PasswordResetRequestSchema.parse(req.body);
-    await requestPasswordReset(db, { mailer: deps.mailer, publicUrl: config.publicUrl }, input.email);
+    // Answer first, then look the address up and mail: the answer's timing must not tell a registered address from another.
     res.status(202).json({ message: "If an account uses that address, a reset link is on its way. It works once, for 30 minutes." });
+    await requestPasswordReset(db, { mailer: deps.mailer, publicUrl: config.publicUrl }, input.email).catch((err: Error) =>
+      console.warn(`Password reset for a requested address failed after answering: ${err.message}`),
+    );
   });
 
   r.post("/auth/password-reset/confirm", limiter, async (req, res) => {

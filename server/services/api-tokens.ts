@@ -1,5 +1,5 @@
 import { and, desc, eq, isNull } from "drizzle-orm";
-import type { ApiToken, NewApiToken } from "../../shared/schemas/auth";
+import type { ApiToken, ApiTokenScope, NewApiToken } from "../../shared/schemas/auth";
 import type { SessionUser } from "../auth/types";
 import { newSecret, sha256 } from "../auth/secrets";
 import type { Db } from "../db/client";
@@ -12,19 +12,31 @@ export const TOKEN_PREFIX = "sw_";
 const toApiToken = (r: typeof apiTokens.$inferSelect): ApiToken => ({
   id: r.id,
   name: r.name,
+  scope: r.scope === "read" ? "read" : "read-write",
   createdAt: r.createdAt.toISOString(),
   lastUsedAt: r.lastUsedAt ? r.lastUsedAt.toISOString() : null,
+  expiresAt: r.expiresAt ? r.expiresAt.toISOString() : null,
 });
+
+export interface TokenOptions {
+  scope?: ApiTokenScope;
+  /** null or absent: never expires. */
+  expiresInDays?: number | null;
+}
 
 export async function listApiTokens(db: Db, userId: string): Promise<ApiToken[]> {
   const rows = await db.select().from(apiTokens).where(and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt))).orderBy(desc(apiTokens.createdAt));
   return rows.map(toApiToken);
 }
 
-/** Mints a token: 32 random bytes shown once; only its SHA-256 is stored. */
-export async function createApiToken(db: Db, userId: string, name: string): Promise<NewApiToken> {
+/** Mints a token: 32 random bytes shown once; only its SHA-256 is stored. Without options it may read and write and never expires. */
+export async function createApiToken(db: Db, userId: string, name: string, options: TokenOptions = {}): Promise<NewApiToken> {
   const token = TOKEN_PREFIX + newSecret();
-  const [row] = await db.insert(apiTokens).values({ userId, name, tokenHash: sha256(token) }).returning();
+  const expiresAt = options.expiresInDays ? new Date(Date.now() + options.expiresInDays * 86_400_000) : null;
+  const [row] = await db
+    .insert(apiTokens)
+    .values({ userId, name, tokenHash: sha256(token), scope: options.scope ?? "read-write", expiresAt })
+    .returning();
   return { ...toApiToken(row!), token };
 }
 
@@ -37,17 +49,34 @@ export async function revokeApiToken(db: Db, userId: string, tokenId: string): P
   if (rows.length === 0) throw notFound("No such token.");
 }
 
-/** The user a Bearer token belongs to, or null when unknown or revoked. */
-export async function userForApiToken(db: Db, token: string): Promise<SessionUser | null> {
+export type TokenCheck =
+  | { ok: true; user: SessionUser; scope: ApiTokenScope }
+  | { ok: false; reason: "unknown" | "revoked" | "expired"; message: string };
+
+/** Who a Bearer token speaks for and what it may do; unknown, revoked and expired tokens are refused with a reason. */
+export async function checkApiToken(db: Db, token: string): Promise<TokenCheck> {
   const [row] = await db
-    .select({ tokenId: apiTokens.id, id: users.id, name: users.name, email: users.email, lastUsedAt: apiTokens.lastUsedAt })
+    .select({
+      tokenId: apiTokens.id,
+      id: users.id,
+      name: users.name,
+      email: users.email,
+      lastUsedAt: apiTokens.lastUsedAt,
+      revokedAt: apiTokens.revokedAt,
+      expiresAt: apiTokens.expiresAt,
+      scope: apiTokens.scope,
+    })
     .from(apiTokens)
     .innerJoin(users, eq(users.id, apiTokens.userId))
-    .where(and(eq(apiTokens.tokenHash, sha256(token)), isNull(apiTokens.revokedAt)));
-  if (!row) return null;
+    .where(eq(apiTokens.tokenHash, sha256(token)));
+  if (!row) return { ok: false, reason: "unknown", message: "The API token is not valid: it may be mistyped. Mint a new one in Settings." };
+  if (row.revokedAt) return { ok: false, reason: "revoked", message: "The API token was revoked. Mint a new one in Settings." };
+  if (row.expiresAt && row.expiresAt.getTime() <= Date.now()) {
+    return { ok: false, reason: "expired", message: `The API token expired on ${row.expiresAt.toISOString().slice(0, 10)}. Mint a new one in Settings.` };
+  }
   // Record use at most once a minute: a busy script should not write on every request.
   if (!row.lastUsedAt || Date.now() - row.lastUsedAt.getTime() > 60_000) {
     await db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.tokenId));
   }
-  return { id: row.id, name: row.name, email: row.email };
+  return { ok: true, user: { id: row.id, name: row.name, email: row.email }, scope: row.scope === "read" ? "read" : "read-write" };
 }

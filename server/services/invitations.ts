@@ -91,15 +91,26 @@ export async function revokeInvitation(db: Db, studyId: string, actorId: string,
   });
 }
 
-async function findOpen(db: DbOrTx, token: string) {
+async function findOpenWhere(db: DbOrTx, where: ReturnType<typeof eq>) {
   const [row] = await db
     .select({ inv: invitations, studyName: studies.name, inviterName: users.name })
     .from(invitations)
     .innerJoin(studies, eq(studies.id, invitations.studyId))
     .leftJoin(users, eq(users.id, invitations.invitedBy))
-    .where(and(eq(invitations.tokenHash, sha256(token)), open()));
+    .where(and(where, open()));
+  return row ?? null;
+}
+
+async function findOpen(db: DbOrTx, token: string) {
+  const row = await findOpenWhere(db, eq(invitations.tokenHash, sha256(token)));
   if (!row) throw notFound("This invitation link is not valid: it may have expired, been used or been revoked. Ask the Study's owner for a new one.");
   return row;
+}
+
+/** The open invitation a link's token belongs to (id and address), or null. */
+export async function openInvitationByToken(db: DbOrTx, token: string): Promise<{ id: string; email: string } | null> {
+  const row = await findOpenWhere(db, eq(invitations.tokenHash, sha256(token)));
+  return row ? { id: row.inv.id, email: row.inv.email } : null;
 }
 
 export async function previewInvitation(db: Db, token: string): Promise<InvitationPreview> {
@@ -113,7 +124,16 @@ export async function previewInvitation(db: Db, token: string): Promise<Invitati
  * whoever holds it may accept with their own account (people often have two addresses).
  */
 export async function acceptInvitation(tx: DbOrTx, token: string, user: { id: string; email: string }): Promise<{ studyId: string }> {
-  const row = await findOpen(tx, token);
+  return acceptOpen(tx, await findOpen(tx, token), user);
+}
+
+/** Accepts an invitation by id if it is still open (a sign-up finished from its e-mailed link); null when it is not. */
+export async function acceptInvitationById(tx: DbOrTx, invitationId: string, user: { id: string; email: string }): Promise<{ studyId: string } | null> {
+  const row = await findOpenWhere(tx, eq(invitations.id, invitationId));
+  return row ? acceptOpen(tx, row, user) : null;
+}
+
+async function acceptOpen(tx: DbOrTx, row: NonNullable<Awaited<ReturnType<typeof findOpenWhere>>>, user: { id: string; email: string }): Promise<{ studyId: string }> {
   const claimed = await tx
     .update(invitations)
     .set({ acceptedAt: new Date() })

@@ -11,6 +11,7 @@ import {
 import type { Db, DbOrTx } from "../db/client";
 import { lifeCycles, users } from "../db/schema";
 import { badRequest, conflict, notFound, zodFields } from "../http/errors";
+import { faultPoint } from "../testing/fault-point";
 import { recordEvent } from "./audit";
 
 type Row = typeof lifeCycles.$inferSelect & { updatedByName: string | null };
@@ -110,15 +111,18 @@ export async function saveDocument(tx: DbOrTx, id: string, userId: string, versi
       { current },
     );
   }
+  await faultPoint("life-cycle-save:mid-transaction");
   await recordEvent(tx, { studyId: row.studyId, actorId: userId, action: "life_cycle.updated", summary: `${what} the life cycle “${document.name}” (version ${row.version})`, details: { lifeCycleId: id, version: row.version } });
 }
 
 export async function updateLifeCycle(db: Db, id: string, userId: string, version: number, rawDocument: unknown): Promise<LifeCycleRecord> {
   const document = parseDocument(rawDocument);
-  return db.transaction(async (tx) => {
+  const saved = await db.transaction(async (tx) => {
     await saveDocument(tx, id, userId, version, document);
     return getLifeCycle(tx, id);
   });
+  await faultPoint("life-cycle-save:after-commit");
+  return saved;
 }
 
 export async function deleteLifeCycle(db: Db, id: string, userId: string): Promise<void> {

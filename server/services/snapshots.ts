@@ -1,4 +1,5 @@
 import { and, desc, eq, sql } from "drizzle-orm";
+import { faultPoint } from "../testing/fault-point";
 import { upgradeLifeCycle } from "../../shared/lifecycle";
 import type { LifeCycleRecord, Snapshot, SnapshotSummary } from "../../shared/schemas/life-cycles";
 import type { Db, DbOrTx } from "../db/client";
@@ -70,6 +71,7 @@ export async function restoreSnapshot(db: Db, lifeCycleId: string, snapshotId: s
     const [snap] = await tx.select().from(snapshots).where(and(eq(snapshots.id, snapshotId), eq(snapshots.lifeCycleId, lifeCycleId)));
     if (!snap) throw notFound("No such snapshot of this life cycle.");
     await saveDocument(tx, lifeCycleId, userId, version, upgradeLifeCycle(snap.document), `restored snapshot #${snap.number}`);
+    await faultPoint("snapshot-restore:mid-transaction");
     const snapshot = await takeSnapshot(tx, lifeCycleId, userId, `Restored snapshot #${snap.number} (${snap.message})`);
     return { lifeCycle: await getLifeCycle(tx, lifeCycleId), snapshot };
   });

@@ -20,15 +20,20 @@ export async function findUserByEmail(db: DbOrTx, email: string): Promise<Sessio
 }
 
 export async function createUser(db: DbOrTx, input: Pick<SignUp, "name" | "email" | "password">): Promise<SessionUser> {
-  const passwordHash = await hashPassword(input.password);
+  return insertUser(db, { name: input.name, email: input.email, passwordHash: await hashPassword(input.password) });
+}
+
+/**
+ * Adds an account. Only called once the address has proved to be the
+ * person's (an e-mailed link), so saying that it is taken reveals nothing new.
+ */
+export async function insertUser(db: DbOrTx, input: { name: string; email: string; passwordHash: string }): Promise<SessionUser> {
   try {
-    const [u] = await db.insert(users).values({ name: input.name, email: input.email, passwordHash }).returning();
+    const [u] = await db.insert(users).values(input).returning();
     return publicUser(u!);
   } catch (err) {
     if (isUniqueViolation(err)) {
-      // Sign-up has to say something here; the message does not say whether the address is registered
-      // beyond what any sign-up form must, and points to the reset flow.
-      throw new HttpError(409, "This e-mail cannot be used to create an account. If it is yours, sign in or reset your password.", "conflict", [
+      throw new HttpError(409, "You already have an account with this e-mail address. Sign in, or reset your password if you forgot it.", "conflict", [
         { path: "email", message: "Sign in or reset your password instead." },
       ]);
     }

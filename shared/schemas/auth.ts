@@ -31,6 +31,10 @@ export const SignUpSchema = z.strictObject({
 });
 export type SignUp = z.infer<typeof SignUpSchema>;
 
+/** Opening the link e-mailed at sign-up. */
+export const SignUpConfirmSchema = z.strictObject({ token: z.string().min(1, "The link has no token.").max(200) });
+export type SignUpConfirm = z.infer<typeof SignUpConfirmSchema>;
+
 export const SignInSchema = z.strictObject({
   email: EmailSchema,
   password: z.string().min(1, "Enter your password.").max(MAX_PASSWORD_LENGTH),
@@ -65,17 +69,37 @@ export type User = z.infer<typeof UserSchema>;
 export const SessionInfoSchema = z.object({ user: UserSchema.nullable() });
 export type SessionInfo = z.infer<typeof SessionInfoSchema>;
 
+export const API_TOKEN_SCOPES = ["read", "read-write"] as const;
+/** What a token may do: "read" allows GET requests and the stateless analysis; "read-write" everything its owner's roles allow. */
+export const ApiTokenScopeSchema = z.enum(API_TOKEN_SCOPES, { error: "The scope is “read” or “read-write”." });
+export type ApiTokenScope = z.infer<typeof ApiTokenScopeSchema>;
+/** Longest lifetime a token can be given, in days. */
+export const MAX_TOKEN_DAYS = 366;
+
 export const ApiTokenCreateSchema = z.strictObject({
   name: z.string().trim().min(1, "Name the token after the script that uses it.").max(100),
+  scope: ApiTokenScopeSchema.default("read"),
+  /** Days until the token stops working; null: it never expires (revoke it by hand). */
+  expiresInDays: z
+    .number({ error: "Give the number of days, or null for no expiry." })
+    .int("Whole days only.")
+    .min(1, "At least 1 day.")
+    .max(MAX_TOKEN_DAYS, `At most ${MAX_TOKEN_DAYS} days.`)
+    .nullable()
+    .default(90),
 });
-export type ApiTokenCreate = z.infer<typeof ApiTokenCreateSchema>;
+export type ApiTokenCreate = z.input<typeof ApiTokenCreateSchema>;
 
 export const ApiTokenSchema = z.object({
   id: z.string(),
   name: z.string(),
+  scope: ApiTokenScopeSchema,
   createdAt: z.string(),
   lastUsedAt: z.string().nullable(),
+  /** null: never expires. */
+  expiresAt: z.string().nullable(),
 });
 export type ApiToken = z.infer<typeof ApiTokenSchema>;
 /** Returned once, at creation: the secret is never shown again. */
-export type NewApiToken = ApiToken & { token: string };
+export const NewApiTokenSchema = ApiTokenSchema.extend({ token: z.string() });
+export type NewApiToken = z.infer<typeof NewApiTokenSchema>;

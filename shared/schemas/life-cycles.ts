@@ -5,6 +5,13 @@ import type { DeltaMethodResult } from "../uncertainty";
 
 export const MAX_LIFE_CYCLE_NAME_LENGTH = 200;
 
+/** A life cycle's version number as the editor last loaded it (stored as a 32-bit integer). */
+export const LifeCycleVersionSchema = z
+  .number({ error: "Give the version number the editor loaded." })
+  .int("A version is a whole number.")
+  .min(1, "Versions start at 1.")
+  .max(2_147_483_647, "No life cycle has a version that high.");
+
 /** Create a life cycle: a blank one by name, or from a complete Stagewright document. */
 export const LifeCycleCreateSchema = z.union([
   z.strictObject({ name: z.string().trim().min(1, "Name the life cycle.").max(MAX_LIFE_CYCLE_NAME_LENGTH) }),
@@ -14,7 +21,7 @@ export type LifeCycleCreate = z.infer<typeof LifeCycleCreateSchema>;
 
 /** Save a life cycle: the version it was loaded at (optimistic concurrency) and the whole document. */
 export const LifeCycleUpdateSchema = z.strictObject({
-  version: z.number().int().min(1),
+  version: LifeCycleVersionSchema,
   document: z.unknown(),
 });
 export type LifeCycleUpdate = z.infer<typeof LifeCycleUpdateSchema>;
@@ -124,7 +131,7 @@ export type SnapshotCreate = z.infer<typeof SnapshotCreateSchema>;
 
 export const SnapshotRestoreSchema = z.strictObject({
   /** The life cycle's version the editor has loaded (a stale one gets 409). */
-  version: z.number().int().min(1),
+  version: LifeCycleVersionSchema,
 });
 export type SnapshotRestore = z.infer<typeof SnapshotRestoreSchema>;
 

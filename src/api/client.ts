@@ -126,6 +126,26 @@ async function request<T>(method: Method, path: string, body?: unknown, signal?:
   return (text ? JSON.parse(text) : undefined) as T;
 }
 
+/** A file from the server (PDF, zip), with the name it asked to be saved as. */
+export interface DownloadedFile {
+  blob: Blob;
+  fileName: string;
+}
+
+async function requestFile(path: string, fallbackName: string, signal?: AbortSignal): Promise<DownloadedFile> {
+  let response: Response;
+  try {
+    response = await fetch(`${API_BASE}${path}`, { credentials: "same-origin", signal });
+  } catch (cause) {
+    if (signal?.aborted) throw cause;
+    throw new ApiError(0, "network", "Stagewright cannot reach its server. Check your connection, then try again.");
+  }
+  if (!response.ok) throw await toApiError(response);
+  const disposition = response.headers.get("Content-Disposition") ?? "";
+  const fileName = /filename="([^"]+)"/.exec(disposition)?.[1] ?? fallbackName;
+  return { blob: await response.blob(), fileName };
+}
+
 /** Encode one path segment (ids and tokens come from URLs and must not break out of their segment). */
 export function segment(value: string): string {
   return encodeURIComponent(value);
@@ -139,4 +159,6 @@ export const api = {
   delete: (path: string) => request<void>("DELETE", path),
   /** multipart/form-data (file uploads); the browser sets the boundary. */
   postForm: <T>(path: string, form: FormData) => request<T>("POST", path, form),
+  /** GET a file; failures become ApiErrors like any other request. */
+  file: (path: string, fallbackName: string, signal?: AbortSignal) => requestFile(path, fallbackName, signal),
 };

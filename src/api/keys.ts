@@ -57,6 +57,8 @@ export const queryKeys = {
     comments: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "comments"] as const,
     /** Review requests, decisions and the review status (GET /life-cycles/:id/reviews). */
     reviews: (lifeCycleId: string) => [...queryKeys.lifeCycles.detail(lifeCycleId), "reviews"] as const,
+    /** The report of the saved state (snapshot null) or of one snapshot. */
+    report: (lifeCycleId: string, snapshotId: string | null) => [...queryKeys.lifeCycles.detail(lifeCycleId), "report", snapshotId] as const,
   },
 
   /** Runs by id: status and progress while they compute, then their result. */
@@ -85,4 +87,7 @@ export const queryKeys = {
   },
 
   devMail: ["dev", "mail"] as const,
+
+  /** The OpenAPI document (public, the same for everyone). */
+  openApi: ["openapi"] as const,
 };

@@ -6,6 +6,7 @@ import type {
   SessionInfo,
   SignIn,
   SignUp,
+  SignUpConfirm,
   User,
 } from "../../shared/schemas";
 import { api } from "./client";
@@ -60,13 +61,32 @@ export function useSignIn() {
   });
 }
 
-export type SignUpResult = { user: User; joinedStudyId?: string };
+/** A finished sign-up: the new account is signed in (and joined the invited Study). */
+export type SignUpDone = { user: User; joinedStudyId?: string };
+/**
+ * Sign-up answers `{ message }` (202) while the e-mailed link waits to be
+ * opened — the same for every address, registered or not — and `SignUpDone`
+ * (201) only when an invitation sent to that very address proved it.
+ */
+export type SignUpResult = SignUpDone | { message: string };
 export const signUp = (body: SignUp) => api.post<SignUpResult>("/auth/sign-up", body);
 
 export function useSignUp() {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: signUp,
+    onSuccess: (result) => {
+      if ("user" in result) startSession(queryClient, result.user);
+    },
+  });
+}
+
+export const confirmSignUp = (body: SignUpConfirm) => api.post<SignUpDone>("/auth/sign-up/confirm", body);
+
+export function useConfirmSignUp() {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: confirmSignUp,
     onSuccess: ({ user }) => startSession(queryClient, user),
   });
 }

@@ -12,3 +12,17 @@ export function downloadText(filename: string, text: string, mimeType: string): 
   // Give the browser a moment to start the download before the URL goes.
   window.setTimeout(() => URL.revokeObjectURL(url), 10_000);
 }
+
+/** Saves a file the server made (a PDF, a zip) through the browser's download. */
+export function downloadBlob(filename: string, blob: Blob): void {
+  const url = URL.createObjectURL(blob);
+  const a = document.createElement("a");
+  a.href = url;
+  a.download = filename;
+  a.rel = "noopener";
+  a.style.display = "none";
+  document.body.append(a);
+  a.click();
+  a.remove();
+  window.setTimeout(() => URL.revokeObjectURL(url), 10_000);
+}

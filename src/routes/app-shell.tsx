@@ -35,7 +35,7 @@ export function AppShell() {
       >
         Skip to content
       </a>
-      <header className="relative border-b border-ink/15 bg-white">
+      <header className="relative border-b border-ink/15 bg-white print:hidden">
         <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-2.5">
           <Link to={paths.home()} className="flex items-center gap-2 rounded-md text-xl font-bold tracking-tight">
             <Mark />
@@ -57,6 +57,11 @@ export function AppShell() {
                   </li>
                 </>
               )}
+              <li>
+                <NavLink to={paths.apiGuide()} className={navLinkClasses}>
+                  API
+                </NavLink>
+              </li>
               {mailOutbox && (
                 <li>
                   <NavLink to={paths.mailOutbox()} className={navLinkClasses}>

@@ -199,6 +199,13 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
           </div>
           <div className="flex flex-wrap items-center gap-3">
             <LambdaReadout analysis={analysis} hasStages={document.stages.length > 0} timeStepUnit={document.timeStepUnit} />
+            <Link
+              to={paths.report(initial.id)}
+              className="rounded-md border border-ink/30 bg-white px-3 py-1.5 text-sm font-bold hover:bg-ink/5"
+              title="The saved state, laid out for printing, with a PDF download"
+            >
+              Report
+            </Link>
             {readOnly ? (
               <p className="text-sm">
                 Version {editor.version}

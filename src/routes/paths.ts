@@ -9,6 +9,7 @@ export const routePatterns = {
   home: "/",
   signIn: "/sign-in",
   signUp: "/sign-up",
+  confirmSignUp: "/sign-up/confirm",
   forgotPassword: "/forgot-password",
   resetPassword: "/reset-password",
   invitation: "/invitations/:token",
@@ -17,6 +18,8 @@ export const routePatterns = {
   lifeCycle: "/life-cycles/:lifeCycleId",
   fieldData: "/studies/:studyId/field-data",
   dataset: "/datasets/:datasetId",
+  report: "/life-cycles/:lifeCycleId/report",
+  apiGuide: "/api-guide",
   settings: "/settings",
   mailOutbox: "/mail",
   unsubscribe: "/unsubscribe",
@@ -37,6 +40,7 @@ export const paths = {
   /** `invitation`: token of the invitation the new account accepts on creation. */
   signUp: (options: { next?: string | null; invitation?: string | null } = {}) =>
     withSearch(routePatterns.signUp, { invitation: options.invitation, next: options.next }),
+  confirmSignUp: (token?: string) => withSearch(routePatterns.confirmSignUp, { token }),
   forgotPassword: () => routePatterns.forgotPassword,
   resetPassword: (token?: string) => withSearch(routePatterns.resetPassword, { token }),
   invitation: (token: string) => generatePath(routePatterns.invitation, { token }),
@@ -45,6 +49,10 @@ export const paths = {
   lifeCycle: (lifeCycleId: string) => generatePath(routePatterns.lifeCycle, { lifeCycleId }),
   fieldData: (studyId: string) => generatePath(routePatterns.fieldData, { studyId }),
   dataset: (datasetId: string) => generatePath(routePatterns.dataset, { datasetId }),
+  /** `snapshot`: report that snapshot instead of the saved state. */
+  report: (lifeCycleId: string, options: { snapshot?: string | null } = {}) =>
+    withSearch(generatePath(routePatterns.report, { lifeCycleId }), { snapshot: options.snapshot }),
+  apiGuide: () => routePatterns.apiGuide,
   settings: () => routePatterns.settings,
   mailOutbox: () => routePatterns.mailOutbox,
   studyActivity: (studyId: string) => generatePath(routePatterns.studyActivity, { studyId }),

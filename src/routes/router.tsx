@@ -61,6 +61,10 @@ export const routes: RouteObject[] = [
             lazy: () => import("./sign-up").then((m) => ({ Component: m.SignUpPage })),
           },
           {
+            path: routePatterns.confirmSignUp,
+            lazy: () => import("./confirm-sign-up").then((m) => ({ Component: m.ConfirmSignUpPage })),
+          },
+          {
             path: routePatterns.forgotPassword,
             loader: guestOnly,
             lazy: () => import("./forgot-password").then((m) => ({ Component: m.ForgotPasswordPage })),
@@ -72,6 +76,11 @@ export const routes: RouteObject[] = [
           {
             path: routePatterns.invitation,
             lazy: () => import("./accept-invitation").then((m) => ({ Component: m.AcceptInvitationPage })),
+          },
+          {
+            // Public like the document it shows: a script's author may read it before signing up.
+            path: routePatterns.apiGuide,
+            lazy: () => import("./api-guide").then((m) => ({ Component: m.ApiGuidePage })),
           },
           {
             path: routePatterns.mailOutbox,
@@ -152,6 +161,10 @@ export const routes: RouteObject[] = [
                   return null;
                 },
                 lazy: () => import("./dataset").then((m) => ({ Component: m.DatasetPage })),
+                },
+                {
+                path: routePatterns.report,
+                lazy: () => import("./report").then((m) => ({ Component: m.ReportPage })),
               },
               {
                 path: routePatterns.settings,

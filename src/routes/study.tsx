@@ -6,6 +6,7 @@ import { FieldDataSection } from "../features/field-data/field-data-section";
 import { InvitationsPanel } from "../features/invitations/invitations-panel";
 import { LifeCyclesPanel } from "../features/life-cycles/life-cycles-panel";
 import { MembersPanel } from "../features/members/members-panel";
+import { StudyExportPanel } from "../features/report";
 import { StudyDetailsForm } from "../features/studies/study-details-form";
 import { StudyHeader } from "../features/studies/study-header";
 
@@ -28,6 +29,7 @@ export function StudyPage() {
         </div>
         <div className="min-w-0 space-y-6">
           {isOwner && <StudyDetailsForm study={study} />}
+          <StudyExportPanel studyId={study.id} />
           <ActivityPanel studyId={study.id} />
         </div>
       </div>

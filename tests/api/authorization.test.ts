@@ -9,7 +9,7 @@ import { unsubscribeToken } from "../../server/services/notifications";
 import { createApiToken } from "../../server/services/api-tokens";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 import { COUNTS_CSV, countsFields, FATES_CSV, fatesFields, uploadCsv } from "../helpers/field-data";
-import { browserAgent, signUpAgent, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
+import { browserAgent, signUpAgent, signUpToken, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
 
 /**
  * The authorisation matrix: every route mounted on the API router must have an
@@ -102,6 +102,7 @@ const riskSettings = (lifeCycleId: string) => ({ environment: { kind: "matrices"
 
 const MATRIX: Record<string, Entry> = {
   "GET /health": { access: "public", request: async () => ({ path: "/health" }) },
+  "GET /openapi.json": { access: "public", request: async () => ({ path: "/openapi.json" }) },
   "GET /auth/session": { access: "public", request: async () => ({ path: "/auth/session" }) },
   "POST /auth/sign-up": {
     access: "public",
@@ -113,8 +114,17 @@ const MATRIX: Record<string, Entry> = {
     ownAgent: true,
     request: async (ctx) => {
       const email = `signin-${unique()}@example.org`;
-      await (await browserAgent(ctx.server)).post("/api/v1/auth/sign-up", { name: "S", email, password: "long enough password" });
+      await signUpAgent(ctx.server, { email, password: "long enough password" });
       return { path: "/auth/sign-in", body: { email, password: "long enough password" } };
+    },
+  },
+  "POST /auth/sign-up/confirm": {
+    access: "public",
+    ownAgent: true,
+    request: async (ctx) => {
+      const email = `confirm-${unique()}@example.org`;
+      await (await browserAgent(ctx.server)).post("/api/v1/auth/sign-up", { name: "C", email, password: "long enough password" });
+      return { path: "/auth/sign-up/confirm", body: { token: await signUpToken(ctx.server, email) } };
     },
   },
   "POST /auth/sign-out": { access: "public", ownAgent: true, request: async () => ({ path: "/auth/sign-out" }) },
@@ -160,6 +170,7 @@ const MATRIX: Record<string, Entry> = {
     request: async (c) => ({ path: `/studies/${c.studyId}/invitations/${(await freshInvitation(c)).id}` }),
   },
   "GET /studies/:studyId/activity": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}/activity` }) },
+  "GET /studies/:studyId/export.zip": { access: "viewer", request: async (c) => ({ path: `/studies/${c.studyId}/export.zip` }) },
   "GET /invitations/:token": { access: "public", request: async (c) => ({ path: `/invitations/${(await freshInvitation(c)).token}` }) },
   // Accepting joins a Study: use another one, so the personas of the matrix Study stay as they are.
   "POST /invitations/:token/accept": { access: "user", request: async (c) => ({ path: `/invitations/${(await freshInvitation(c, otherStudyId)).token}/accept` }) },
@@ -176,6 +187,8 @@ const MATRIX: Record<string, Entry> = {
   "DELETE /life-cycles/:lifeCycleId": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}` }) },
   "POST /life-cycles/:lifeCycleId/duplicate": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/duplicate`, body: {} }) },
   "GET /life-cycles/:lifeCycleId/analysis": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/analysis` }) },
+  "GET /life-cycles/:lifeCycleId/report": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/report` }) },
+  "GET /life-cycles/:lifeCycleId/report.pdf": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/report.pdf` }) },
   "GET /life-cycles/:lifeCycleId/snapshots": { access: "viewer", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/snapshots` }) },
   "POST /life-cycles/:lifeCycleId/snapshots": { access: "editor", request: async (c) => ({ path: `/life-cycles/${await freshLifeCycle(c)}/snapshots`, body: { message: "snap" } }) },
   "GET /snapshots/:snapshotId": { access: "viewer", request: async (c) => ({ path: `/snapshots/${await freshSnapshot(c, await freshLifeCycle(c))}` }) },

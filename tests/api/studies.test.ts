@@ -153,7 +153,8 @@ describe("invitations", () => {
 describe("API tokens", () => {
   it("mints a token shown once, stored as SHA-256, usable as Bearer without CSRF, and revocable", async () => {
     const { owner, studyId } = await studyWithOwner();
-    const created = await owner.post("/api/v1/account/tokens", { name: "nightly script" });
+    // Writes need a read-write token (a new token is read-only unless asked otherwise: see api-tokens.test.ts).
+    const created = await owner.post("/api/v1/account/tokens", { name: "nightly script", scope: "read-write", expiresInDays: 30 });
     expect(created.status).toBe(201);
     const token: string = created.body.token;
     expect(token).toMatch(/^sw_[A-Za-z0-9_-]{43}$/);

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import { launchBrowser, watchPageErrors } from "../helpers/browser";
+import { signUp as signUpThroughPages } from "../helpers/editor";
 import { startTestServer, type TestServer } from "../helpers/server";
 
 let server: TestServer;
@@ -14,13 +15,7 @@ afterAll(async () => {
   await server?.close();
 });
 
-async function signUp(page: Page, name: string, email: string) {
-  await page.goto(`${server.url}/sign-up`);
-  await page.getByLabel("Name").fill(name);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill("a long enough password");
-  await page.getByRole("button", { name: "Create account" }).click();
-}
+const signUp = (page: Page, name: string, email: string) => signUpThroughPages(page, server, name, email);
 
 it("an owner invites a reviewer, who signs up from the e-mailed link and sees the Study read-only", async () => {
   // The owner signs up, creates a Study and invites a reviewer.

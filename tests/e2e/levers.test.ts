@@ -140,6 +140,8 @@ describe("the Levers tab", () => {
       for (const rate of ["s_j", "s_s", "s_a", "m"]) await ranking.locator(`tr[data-lever="${rate}"]`).waitFor();
       expect(await page.getByTestId("levers-cautions").textContent()).toMatch(/support and do not replace expert judgement/);
       await page.screenshot({ path: "/tmp/levers-e2e-scenarios.png", fullPage: true });
+      // Autosave waits for a quiet moment after the last edit: leave only once the header says it is saved.
+      await page.getByText(/Saved · version/).waitFor({ timeout: 15_000 });
     });
 
     // What the editor saved: both scenarios, in the document.

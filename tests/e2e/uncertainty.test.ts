@@ -112,6 +112,12 @@ describe("uncertainty of the results", () => {
       expect(await page.getByTestId("rank-stability-verdict").textContent()).toContain(`largest elasticity is ${top.name}’s. It ranks first in ${(top.rankFirst * 100).toFixed(1)} %`);
       await page.getByRole("img", { name: /^Histogram of λ over 20,000 draws/ }).locator("svg").waitFor();
       await page.screenshot({ path: ".data/e2e-uncertainty-monte-carlo.png", fullPage: true });
+
+      // Levers shows the same rank stability beside its ranking.
+      await tab(page, "Levers").click();
+      const cell = page.locator(`[data-testid="levers-ranking"] tr[data-lever="${top.name}"] [data-col="rank-first"]`);
+      await expect.poll(() => cell.textContent(), { timeout: 15_000 }).toBe(`${Number((top.rankFirst * 100).toPrecision(3))} %`);
+      await page.getByTestId("levers-rank-stability-note").waitFor();
       expect(errors()).toEqual([]);
     } catch (error) {
       await page.screenshot({ path: ".data/e2e-uncertainty-failure.png", fullPage: true }).catch(() => undefined);

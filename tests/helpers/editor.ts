@@ -3,14 +3,19 @@
 // drawing on the diagram with the mouse, and reading λ.
 import { expect } from "vitest";
 import type { Page } from "playwright-core";
-import type { TestServer } from "./server";
+import { signUpToken, type TestServer } from "./server";
 
+/** Signs up through the pages as a person does: the form, then the link e-mailed to finish (the Studies page follows). */
 export async function signUp(page: Page, server: TestServer, name: string, email: string, path = "/sign-up") {
   await page.goto(`${server.url}${path}`);
   await page.getByLabel("Name").fill(name);
   await page.getByLabel("E-mail").fill(email);
   await page.getByLabel("Password").fill("a long enough password");
   await page.getByRole("button", { name: "Create account" }).click();
+  await page.getByText("One more step").waitFor();
+  await page.goto(`${server.url}/sign-up/confirm?token=${await signUpToken(server, email.toLowerCase())}`);
+  await page.getByRole("button", { name: "Create my account" }).click();
+  await page.waitForURL(/\/studies$/);
 }
 
 /** A JSON request from the page's own session; returns the status and the parsed body. */

@@ -1,7 +1,7 @@
 import type { AddressInfo } from "node:net";
 import type { Server } from "node:http";
 import path from "node:path";
-import { desc } from "drizzle-orm";
+import { and, desc, eq, like } from "drizzle-orm";
 import supertest from "supertest";
 import { createApp } from "../../server/app";
 import { loadConfig, type Config } from "../../server/config";
@@ -20,8 +20,8 @@ export interface TestServer {
   db: Awaited<ReturnType<typeof createTestDatabase>>["db"];
   pool: Awaited<ReturnType<typeof createTestDatabase>>["pool"];
   config: Config;
-  /** The newest caught message to `to`, waiting up to `timeoutMs` for it. */
-  mailTo(to: string, timeoutMs?: number): Promise<{ subject: string; text: string; links: string[] }>;
+  /** The newest caught message to `to` (whose subject matches `subject`, if given), waiting up to `timeoutMs` for it. */
+  mailTo(to: string, timeoutMs?: number, subject?: RegExp): Promise<{ subject: string; text: string; links: string[] }>;
   close(): Promise<void>;
 }
 
@@ -49,11 +49,11 @@ export async function startTestServer(overrides: Partial<Config> = {}): Promise<
     db: database.db,
     pool: database.pool,
     config,
-    async mailTo(to, timeoutMs = 5000) {
+    async mailTo(to, timeoutMs = 5000, subject) {
       const until = Date.now() + timeoutMs;
       for (;;) {
         const rows = await database.db.select().from(mailOutbox).orderBy(desc(mailOutbox.id));
-        const m = rows.find((r) => r.to.split(", ").includes(to));
+        const m = rows.find((r) => r.to.split(", ").includes(to) && (!subject || subject.test(r.subject)));
         if (m) return { subject: m.subject, text: m.text, links: m.text.match(/https?:\/\/\S+/g) ?? [] };
         if (Date.now() > until) throw new Error(`No e-mail to ${to} arrived within ${timeoutMs} ms`);
         await new Promise((r) => setTimeout(r, 50));
@@ -99,6 +99,21 @@ export async function signUpAgent(server: TestServer, overrides: Partial<{ name:
   const n = ++counter;
   const user = { name: `Tester ${n}`, email: `tester${n}.${Date.now()}@example.org`, password: "correct horse battery", ...overrides };
   const res = await a.post("/api/v1/auth/sign-up", user);
-  if (res.status !== 201) throw new Error(`sign-up failed: ${res.status} ${JSON.stringify(res.body)}`);
-  return { ...a, user: { ...user, id: res.body.user.id as string } };
+  if (res.status !== 202) throw new Error(`sign-up failed: ${res.status} ${JSON.stringify(res.body)}`);
+  // The account exists once the e-mailed link is opened.
+  const done = await a.post("/api/v1/auth/sign-up/confirm", { token: await signUpToken(server, user.email.toLowerCase()) });
+  if (done.status !== 201) throw new Error(`sign-up confirmation failed: ${done.status} ${JSON.stringify(done.body)}`);
+  return { ...a, user: { ...user, id: done.body.user.id as string } };
+}
+
+/**
+ * The token of the newest sign-up link e-mailed to `email`. The message is
+ * taken out of the outbox, so a later `mailTo` of this person finds only mail
+ * that the test's own actions caused (some are sent after their answer).
+ */
+export async function signUpToken(server: TestServer, email: string): Promise<string> {
+  const link = (await server.mailTo(email, 5000, /Finish creating/)).links.find((l) => l.includes("/sign-up/confirm?token="));
+  if (!link) throw new Error(`The newest e-mail to ${email} has no sign-up link.`);
+  await server.db.delete(mailOutbox).where(and(eq(mailOutbox.to, email), like(mailOutbox.subject, "Finish creating%")));
+  return new URL(link).searchParams.get("token")!;
 }

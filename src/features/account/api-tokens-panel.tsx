@@ -2,6 +2,7 @@ import { zodResolver } from "@hookform/resolvers/zod";
 import { createColumnHelper } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
 import { useForm } from "react-hook-form";
+import { z } from "zod";
 import { type ApiToken, ApiTokenCreateSchema, type NewApiToken } from "../../../shared/schemas";
 import { useApiTokens, useCreateApiToken, useRevokeApiToken } from "../../api/account";
 import { Alert } from "../../components/ui/alert";
@@ -9,11 +10,11 @@ import { Button } from "../../components/ui/button";
 import { CopyButton } from "../../components/ui/copy-button";
 import { DataTable } from "../../components/ui/data-table";
 import { ConfirmDialog } from "../../components/ui/dialog";
-import { TextField } from "../../components/ui/field";
+import { SelectField, TextField } from "../../components/ui/field";
 import { Section } from "../../components/ui/layout";
 import { QueryError } from "../../components/ui/query-error";
 import { Loading } from "../../components/ui/spinner";
-import { RelativeTime } from "../../components/ui/time";
+import { DateTime, RelativeTime } from "../../components/ui/time";
 import { applyServerErrors } from "../../lib/form-errors";
 
 const column = createColumnHelper<ApiToken>();
@@ -28,7 +29,9 @@ export function ApiTokensPanel() {
   const columns = useMemo(
     () => [
       column.accessor("name", { header: "Name", cell: (info) => <span className="font-bold">{info.getValue()}</span> }),
+      column.accessor("scope", { header: "May", cell: (info) => (info.getValue() === "read" ? "read only" : "read and write") }),
       column.accessor("createdAt", { header: "Created", cell: (info) => <RelativeTime iso={info.getValue()} /> }),
+      column.accessor("expiresAt", { header: "Expires", cell: (info) => <Expiry iso={info.getValue()} /> }),
       column.accessor("lastUsedAt", { header: "Last used", cell: (info) => <RelativeTime iso={info.getValue()} /> }),
       column.display({
         id: "actions",
@@ -51,7 +54,7 @@ export function ApiTokensPanel() {
   return (
     <Section
       title="API tokens"
-      description="A token lets a script use the Stagewright API as you, with your rights in each Study. Revoke a token as soon as its script no longer needs it."
+      description="A token lets a script use the Stagewright API as you, with your rights in each Study. A read-only token can fetch and analyse but change nothing. Give each token the shortest life its script needs, and revoke it as soon as the script no longer needs it."
     >
       {created && <NewTokenNotice token={created} onDone={() => setCreated(null)} />}
       <CreateTokenForm onCreated={setCreated} />
@@ -96,17 +99,38 @@ export function ApiTokensPanel() {
   );
 }
 
+function Expiry({ iso }: { iso: string | null }) {
+  if (!iso) return <span>never</span>;
+  if (new Date(iso).getTime() <= Date.now()) return <span className="font-bold text-brick">expired</span>;
+  return <DateTime iso={iso} />;
+}
+
+const EXPIRY_CHOICES = [
+  { value: "7", label: "in 7 days" },
+  { value: "30", label: "in 30 days" },
+  { value: "90", label: "in 90 days" },
+  { value: "366", label: "in a year" },
+  { value: "never", label: "never (revoke it by hand)" },
+] as const;
+
+/** The form's own values: the expiry as a choice, turned into `expiresInDays` on submit. */
+const TokenFormSchema = ApiTokenCreateSchema.pick({ name: true }).extend({
+  scope: z.enum(["read", "read-write"]),
+  expiry: z.enum(["7", "30", "90", "366", "never"]),
+});
+type TokenForm = z.infer<typeof TokenFormSchema>;
+
 function CreateTokenForm({ onCreated }: { onCreated: (token: NewApiToken) => void }) {
   const create = useCreateApiToken();
   const [formError, setFormError] = useState<string | null>(null);
-  const { register, handleSubmit, setError, reset, formState } = useForm({
-    resolver: zodResolver(ApiTokenCreateSchema),
-    defaultValues: { name: "" },
+  const { register, handleSubmit, setError, reset, formState } = useForm<TokenForm>({
+    resolver: zodResolver(TokenFormSchema),
+    defaultValues: { name: "", scope: "read", expiry: "90" },
   });
 
-  const onSubmit = handleSubmit((values) => {
+  const onSubmit = handleSubmit(({ name, scope, expiry }) => {
     setFormError(null);
-    create.mutate(values, {
+    create.mutate({ name, scope, expiresInDays: expiry === "never" ? null : Number(expiry) }, {
       onSuccess: (token) => {
         reset();
         onCreated(token);
@@ -127,6 +151,17 @@ function CreateTokenForm({ onCreated }: { onCreated: (token: NewApiToken) => voi
           error={formState.errors.name?.message}
           {...register("name")}
         />
+        <SelectField label="It may" error={formState.errors.scope?.message} {...register("scope")}>
+          <option value="read">read only</option>
+          <option value="read-write">read and write</option>
+        </SelectField>
+        <SelectField label="Expires" error={formState.errors.expiry?.message} {...register("expiry")}>
+          {EXPIRY_CHOICES.map((c) => (
+            <option key={c.value} value={c.value}>
+              {c.label}
+            </option>
+          ))}
+        </SelectField>
         <Button type="submit" pending={create.isPending}>
           Create token
         </Button>

@@ -8,6 +8,7 @@ import { useSignUp } from "../../api/session";
 import { Alert } from "../../components/ui/alert";
 import { Button } from "../../components/ui/button";
 import { TextField } from "../../components/ui/field";
+import { textLinkClasses } from "../../components/ui/text-link";
 import { applyServerErrors } from "../../lib/form-errors";
 import { ROLE_LABELS } from "../../lib/roles";
 import { paths } from "../../routes/paths";
@@ -23,6 +24,7 @@ export function SignUpForm({ invitationToken, next }: SignUpFormProps) {
   const signUp = useSignUp();
   const invitation = useInvitationPreview(invitationToken);
   const [formError, setFormError] = useState<string | null>(null);
+  const [pending, setPending] = useState<string | null>(null);
   const { register, handleSubmit, setError, setValue, getValues, formState } = useForm({
     resolver: zodResolver(SignUpSchema),
     defaultValues: { name: "", email: "", password: "" },
@@ -40,12 +42,31 @@ export function SignUpForm({ invitationToken, next }: SignUpFormProps) {
     signUp.mutate(
       { ...values, ...(invitationToken ? { invitationToken } : {}) },
       {
-        onSuccess: ({ joinedStudyId }) =>
-          navigate(joinedStudyId ? paths.study(joinedStudyId) : (next ?? paths.studies()), { replace: true }),
+        onSuccess: (result) => {
+          if ("user" in result) navigate(result.joinedStudyId ? paths.study(result.joinedStudyId) : (next ?? paths.studies()), { replace: true });
+          else setPending(result.message);
+        },
         onError: (error) => setFormError(applyServerErrors(error, setError, ["name", "email", "password"])),
       },
     );
   });
+
+  if (pending) {
+    return (
+      <div className="space-y-4">
+        <Alert tone="success" title="One more step">
+          {pending}
+        </Alert>
+        <p className="text-sm">
+          No message after a few minutes? Look in your spam folder, or{" "}
+          <button type="button" className={textLinkClasses} onClick={() => setPending(null)}>
+            check the address and send it again
+          </button>
+          .
+        </p>
+      </div>
+    );
+  }
 
   return (
     <form noValidate onSubmit={onSubmit} className="space-y-4">

@@ -32,12 +32,4 @@ export function readRate(text: string, document: LifeCycle): RateReading {
   return { ok: false, message: errors.map((e) => e.message).join(" "), unknownRates };
 }
 
-/** A short label for the arrow: the number in up to 4 significant digits, or the formula (shortened). */
-export function rateLabel(rate: Transition["rate"], maxLength = 22): string {
-  if (typeof rate === "number") {
-    if (rate === 0) return "0";
-    const abs = Math.abs(rate);
-    return abs >= 1e-3 && abs < 1e5 ? String(Number(rate.toPrecision(4))) : rate.toExponential(2);
-  }
-  return rate.length > maxLength ? `${rate.slice(0, maxLength - 1)}…` : rate;
-}
+export { rateLabel } from "../../../shared/diagram/labels";

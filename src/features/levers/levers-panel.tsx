@@ -16,6 +16,7 @@ import { BreakEvenSection } from "./break-even-section";
 import { ComparisonSection } from "./comparison-section";
 import { LtreSection } from "./ltre-section";
 import { RankingSection } from "./ranking-section";
+import { useRankStability } from "./rank-stability";
 import { ScenariosEditor } from "./scenarios-editor";
 import { Section } from "./section";
 import type { LeversPanelProps } from "./types";
@@ -31,6 +32,7 @@ export function LeversPanel(props: LeversPanelProps) {
   const [target, setTarget] = useState(1);
   const settings: LeverSettings = { relativeChange, target, breakEven: false };
   const levers = useLevers(lifeCycleId, revision, doc, settings);
+  const stability = useRankStability(lifeCycleId);
   const breakEven = useLevers(lifeCycleId, revision, doc, { ...settings, breakEven: true });
   const stale = levers.isPlaceholderData || levers.isFetching;
 
@@ -73,6 +75,7 @@ export function LeversPanel(props: LeversPanelProps) {
             <ComparisonSection {...props} data={levers.data} />
             <RankingSection
               data={levers.data}
+              stability={stability}
               relativeChange={relativeChange}
               control={
                 <div className="w-44 space-y-1 text-sm">

@@ -13,6 +13,7 @@ import { formatNumber } from "../../lib/number-format";
 import { opText } from "./scenario-edits";
 import { Tornado } from "./lazy-charts";
 import { ChartFallback, Section } from "./section";
+import type { RankStability } from "./rank-stability";
 
 type RankBy = "exact" | "elasticity" | "achievable";
 
@@ -38,7 +39,12 @@ function limited(step: LeverRow["increase"], row: LeverRow): ReactNode {
   );
 }
 
-export function RankingSection({ data, relativeChange, control }: { data: LeversResponse; relativeChange: number; control: ReactNode }) {
+export function RankingSection({ data, relativeChange, control, stability = null }: { data: LeversResponse; relativeChange: number; control: ReactNode; stability?: RankStability | null }) {
+  const firstShare = (r: LeverRow) => {
+    if (!stability) return null;
+    const s = r.kind === "rate" && r.rateId ? stability.rate(r.rateId) : r.from && r.to ? stability.entry(r.from, r.to) : undefined;
+    return s ? `${formatNumber(s.rankFirst * 100, 3)} %` : "—";
+  };
   const [by, setBy] = useState<RankBy>("exact");
   const [show, setShow] = useState<"all" | "rate" | "entry">("all");
   const percent = `${formatNumber(relativeChange * 100, 4)} %`;
@@ -94,7 +100,7 @@ export function RankingSection({ data, relativeChange, control }: { data: Levers
           <caption className="sr-only">Levers ranked by {by === "exact" ? "the exact change in λ" : by === "elasticity" ? "elasticity" : "the achievable change"}</caption>
           <thead className="sticky top-0 bg-paper">
             <tr className="border-b-2 border-ink/20">
-              {["Rank", "Lever", "Value", "Sensitivity", "Elasticity", `Δλ +${percent}`, `Δλ −${percent}`, `First-order +${percent}`, "Achievable change → Δλ"].map((h) => (
+              {["Rank", "Lever", "Value", "Sensitivity", "Elasticity", `Δλ +${percent}`, `Δλ −${percent}`, `First-order +${percent}`, "Achievable change → Δλ", ...(stability ? ["Ranked first (Monte Carlo)"] : [])].map((h) => (
                 <th key={h} scope="col" className="px-2 py-2 whitespace-nowrap">
                   {h}
                 </th>
@@ -135,11 +141,22 @@ export function RankingSection({ data, relativeChange, control }: { data: Levers
                     "—"
                   )}
                 </td>
+                {stability && (
+                  <td className="px-2 py-1 tabular-nums" data-col="rank-first">
+                    {firstShare(r)}
+                  </td>
+                )}
               </tr>
             ))}
           </tbody>
         </table>
       </div>
+      {stability && (
+        <p className="text-sm text-ink/80" data-testid="levers-rank-stability-note">
+          Ranked first (Monte Carlo): the share of the {stability.draws.toLocaleString("en")} draws of the newest uncertainty Run (life-cycle version {stability.version}) in which
+          the lever had the largest elasticity in size — how robust its place is to what we do not know about the rates. See the Uncertainty tab.
+        </p>
+      )}
       {tornado.length > 0 && (
         <Suspense fallback={<ChartFallback />}>
           <Tornado rows={tornado} percent={percent} ariaLabel={`Tornado chart: exact change in λ when each of the ${tornado.length} most influential levers moves ${percent} down or up.`} />

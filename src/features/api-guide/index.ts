@@ -1,0 +1,1 @@
+export { ApiGuide } from "./api-guide";

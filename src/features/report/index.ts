@@ -1,0 +1,2 @@
+export { ReportDocument } from "./report-document";
+export { StudyExportPanel } from "./study-export-panel";
