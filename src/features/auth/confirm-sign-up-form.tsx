@@ -12,17 +12,19 @@ import { paths } from "../../routes/paths";
 export function ConfirmSignUpForm({ token }: { token: string }) {
   const navigate = useNavigate();
   const confirm = useConfirmSignUp();
+  if (confirm.isError) {
+    return (
+      <Alert tone="error">
+        <p>{confirm.error.message}</p>
+        <p className="mt-1">
+          <TextLink to={paths.signUp()}>Sign up again</TextLink> or <TextLink to={paths.signIn()}>sign in</TextLink>.
+        </p>
+      </Alert>
+    );
+  }
   return (
     <div className="space-y-4">
-      {confirm.isError && (
-        <Alert tone="error">
-          <p>{confirm.error.message}</p>
-          <p className="mt-1">
-            <TextLink to={paths.signUp()}>Sign up again</TextLink> or <TextLink to={paths.signIn()}>sign in</TextLink>.
-          </p>
-        </Alert>
-      )}
-      <p>Your e-mail address is confirmed by this link. Create the account to start working.</p>
+      <p>Opening this link confirms your e-mail address. Create the account to start working.</p>
       <Button
         type="button"
         className="w-full"
