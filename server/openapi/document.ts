@@ -87,7 +87,7 @@ export function buildOpenApiDocument(options: OpenApiOptions): Json {
     }
     const responses: Record<string, Json> = {};
     for (const r of op.responses) responses[String(r.status)] = response(r);
-    if (op.body || op.query) responses["400"] ??= errorResponse("Bad input; error.fields names each field and what is wrong with it.");
+    if (op.body || op.query || op.multipart) responses["400"] ??= errorResponse("Bad input; error.fields names each field and what is wrong with it.");
     if (op.access !== "public") {
       responses["401"] ??= errorResponse("Not signed in, or the API token is unknown, revoked or expired.");
       responses["403"] ??= errorResponse(
@@ -109,6 +109,18 @@ export function buildOpenApiDocument(options: OpenApiOptions): Json {
     if (op.body) {
       const schema = "oneOf" in op.body ? { oneOf: op.body.oneOf.map((n) => ref(n, "input")) } : ref(op.body, "input");
       operation.requestBody = { required: true, content: { "application/json": { schema } } };
+    }
+    if (op.multipart) {
+      type Obj = { properties?: Record<string, Json>; oneOf?: Obj[]; anyOf?: Obj[] };
+      const fields = jsonSchema(op.multipart.fields.schema, "input") as Obj;
+      // A union of uploads (counts or stage fates) lists the fields of every alternative.
+      const all = [fields, ...(fields.oneOf ?? []), ...(fields.anyOf ?? [])].flatMap((o) => Object.entries(o.properties ?? {}));
+      const properties: Record<string, Json> = { file: { type: "string", contentMediaType: "text/csv", description: "The CSV file." } };
+      for (const [name, schema] of all) {
+        if (name in properties) continue;
+        properties[name] = schema.type === "object" || schema.anyOf || schema.oneOf ? { type: "string", description: `JSON text: ${JSON.stringify(schema).slice(0, 300)}` } : schema;
+      }
+      operation.requestBody = { required: true, description: op.multipart.description, content: { "multipart/form-data": { schema: { type: "object", properties, required: ["file"] } } } };
     }
     (paths[path] ??= {})[op.method] = operation;
   }

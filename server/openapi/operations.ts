@@ -45,6 +45,15 @@ import {
   SnapshotSchema,
   SnapshotSummarySchema,
 } from "../../shared/schemas/life-cycles";
+import {
+  CountsAnalysisQuerySchema,
+  DatasetRenameSchema,
+  FateAnalysisSettingsSchema,
+  PreviewSchema,
+  RunOnDatasetSchema,
+  StartLifeCycleSchema,
+  UploadSchema,
+} from "../../shared/schemas/field-data";
 import { LeversRequestSchema, LtreRequestSchema } from "../../shared/schemas/levers";
 import { ReportQuerySchema } from "../../shared/schemas/report";
 import {
@@ -89,6 +98,8 @@ export interface Operation {
   description?: string;
   access: Access;
   body?: Named | { oneOf: Named[] };
+  /** A multipart/form-data upload: a CSV `file` plus text fields; `fields` names the schema the text fields follow (JSON fields as text). */
+  multipart?: { fields: Named; description: string };
   query?: Named;
   responses: Response[];
   /** Mounted only while the Mail outbox is on (never in production). */
@@ -261,6 +272,61 @@ export const OPERATIONS: Operation[] = [
     query: named("ReportQuery", ReportQuerySchema),
     responses: [{ status: 200, description: "The PDF.", file: "application/pdf" }],
   },
+
+  // Field data
+  { method: "get", path: "/studies/:studyId/datasets", tag: "Field data", summary: "Datasets of a Study", access: "viewer", responses: [ok("Datasets.", { description: "Datasets with their kind, file, rows, stages, sites and years." })] },
+  {
+    method: "post",
+    path: "/studies/:studyId/datasets/preview",
+    tag: "Field data",
+    summary: "Read the first rows of a CSV file and guess its columns (stores nothing)",
+    access: "editor",
+    multipart: { fields: named("DatasetPreview", PreviewSchema), description: "file: the CSV; options: JSON text of the parse options (delimiter, decimal comma)." },
+    responses: [ok("Columns, first rows and the parse options used.", { description: "The preview." })],
+  },
+  {
+    method: "post",
+    path: "/studies/:studyId/datasets/check",
+    tag: "Field data",
+    summary: "Check every row of a CSV file against a column mapping (stores nothing)",
+    access: "editor",
+    multipart: { fields: named("DatasetUpload", UploadSchema), description: "file: the CSV; kind, name; mapping and options: JSON text." },
+    responses: [ok("The row-level validation report.", { description: "Problems by row and column, and what would be imported." })],
+  },
+  {
+    method: "post",
+    path: "/studies/:studyId/datasets",
+    tag: "Field data",
+    summary: "Upload counts or stage-fate records as a dataset (the file is kept as uploaded)",
+    access: "editor",
+    multipart: { fields: named("DatasetUpload", UploadSchema), description: "file: the CSV; kind (counts or stage-fates), name; mapping and options: JSON text." },
+    responses: [created("The dataset.", { description: "The new dataset." }), { status: 413, description: "The file is larger than the upload limit.", json: { description: "ApiError" } }],
+  },
+  { method: "get", path: "/datasets/:datasetId", tag: "Field data", summary: "A dataset", access: "viewer", responses: [ok("The dataset.", { description: "The dataset with its rows." })] },
+  { method: "patch", path: "/datasets/:datasetId", tag: "Field data", summary: "Rename a dataset", access: "editor", body: named("DatasetRename", DatasetRenameSchema), responses: [ok("The dataset.", { description: "The dataset." })] },
+  { method: "delete", path: "/datasets/:datasetId", tag: "Field data", summary: "Delete a dataset", access: "editor", responses: [noContent("Deleted.")] },
+  { method: "get", path: "/datasets/:datasetId/file", tag: "Field data", summary: "The file exactly as uploaded", access: "viewer", responses: [{ status: 200, description: "The CSV file.", file: "text/csv" }] },
+  {
+    method: "get",
+    path: "/datasets/:datasetId/counts-analysis",
+    tag: "Field data",
+    summary: "Count-based estimates: λ per interval, geometric mean, μ and σ²",
+    access: "viewer",
+    query: named("CountsAnalysisQuery", CountsAnalysisQuerySchema),
+    responses: [ok("The estimates.", { description: "Count-based estimates." })],
+  },
+  {
+    method: "get",
+    path: "/datasets/:datasetId/fate-analysis",
+    tag: "Field data",
+    summary: "Transition matrix estimated from stage-fate records, with sample sizes and intervals",
+    access: "viewer",
+    query: named("FateAnalysisSettings", FateAnalysisSettingsSchema),
+    responses: [ok("The estimated matrix.", { description: "Estimated transition matrix with sample sizes and CIs." })],
+  },
+  { method: "post", path: "/datasets/:datasetId/life-cycles", tag: "Field data", summary: "Start a life cycle from a dataset's estimates", access: "editor", body: named("StartLifeCycle", StartLifeCycleSchema), responses: [created("The new life cycle.", LifeCycleRecord)] },
+  { method: "get", path: "/datasets/:datasetId/runs", tag: "Field data", summary: "Runs on a dataset (bootstraps), newest first", access: "viewer", responses: [ok("Runs.", RunRecord)] },
+  { method: "post", path: "/datasets/:datasetId/runs", tag: "Field data", summary: "Start a Run on a dataset (a bootstrap of λ)", access: "editor", body: named("RunOnDataset", RunOnDatasetSchema), responses: [created("The queued Run.", RunRecord)] },
 
   // Levers
   {

@@ -8,7 +8,9 @@
 import { zipSync, type Zippable } from "fflate";
 import { fileStem, lifeCycleJson, matrixCsv, resultsCsv } from "../../shared/export/csv";
 import { buildMatrices } from "../../shared/lifecycle";
+import { asc, eq } from "drizzle-orm";
 import type { Db } from "../db/client";
+import { datasets } from "../db/schema";
 import { HttpError } from "../http/errors";
 import { reportPdf } from "../report/pdf";
 import { listLifeCycles } from "./life-cycles";
@@ -63,9 +65,25 @@ export async function exportStudy(db: Db, studyId: string, userId: string, limit
     add(`${dir}/report.pdf`, await reportPdf(report, "a4"), "the report (A4)", false);
   }
 
+  // Field data exactly as uploaded (the bytes people sent), one folder per dataset.
+  const rows = await db
+    .select({ name: datasets.name, kind: datasets.kind, fileName: datasets.fileName, content: datasets.fileContent, rowCount: datasets.rowCount })
+    .from(datasets)
+    .where(eq(datasets.studyId, studyId))
+    .orderBy(asc(datasets.name));
+  const usedData = new Set<string>();
+  for (const d of rows) {
+    let stem = fileStem(d.name);
+    for (let k = 2; usedData.has(stem); k++) stem = `${fileStem(d.name)}-${k}`;
+    usedData.add(stem);
+    const file = d.fileName.replace(/[/\\]/g, "_") || "upload.csv";
+    add(`datasets/${stem}/${file}`, new Uint8Array(d.content), `dataset “${d.name}” (${d.kind}, ${d.rowCount} rows) as uploaded`);
+  }
+
   const readme = [
     `Stagewright export of the Study “${study.name}”`,
-    `Made ${new Date().toISOString()}; ${lifeCycles.length} life cycle${lifeCycles.length === 1 ? "" : "s"}.`,
+    `Made ${new Date().toISOString()}; ${lifeCycles.length} life cycle${lifeCycles.length === 1 ? "" : "s"}, ${rows.length} dataset${rows.length === 1 ? "" : "s"}.`,
+    "Datasets are the files exactly as uploaded (their own delimiter and encoding); the CSV escaping below applies to files Stagewright writes.",
     "",
     "CSV files: comma-separated, UTF-8, CRLF line ends. Text cells that begin with =, +, -, @, a tab or a carriage return",
     "are written with a leading ' so a spreadsheet shows them as text instead of running them as formulas. Numbers are plain numbers.",
