@@ -17,7 +17,7 @@ import {
   type ThermalModel,
 } from "../../shared/climate";
 import { buildMatrices, LifeCycleFormulaError, type LifeCycle } from "../../shared/lifecycle";
-import type { Trajectory } from "../../shared/lifecycle/thermal";
+import type { WarmingTrajectory } from "../../shared/lifecycle/thermal";
 import type {
   ClimateFitRequest,
   ClimateFitResponse,
@@ -96,7 +96,7 @@ export function climateFit(req: ClimateFitRequest): ClimateFitResponse {
   return { ...fit, temperatures, values, curve: { temperatures: grid, values: grid.map((t) => responseValue(fit.response, t)) } };
 }
 
-export function climateTrajectory(doc: LifeCycle, trajectory: Trajectory, initialTotal = 1000): ClimateTrajectoryResponse {
+export function climateTrajectory(doc: LifeCycle, trajectory: WarmingTrajectory, initialTotal = 1000): ClimateTrajectoryResponse {
   const model = thermalModelOrBadRequest(doc);
   const { years, temperatures } = trajectoryTemperatures(trajectory);
   return atTemperatures(doc, () => ({ ...projectTrajectory(model, years, temperatures, initialTotal), timeStepUnit: doc.timeStepUnit }));

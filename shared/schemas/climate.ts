@@ -6,7 +6,7 @@
 import { z } from "zod";
 import type { FitResult, LambdaCurve, LambdaSlope, ReplicateSummary, TrajectoryProjection } from "../climate";
 import { MAX_CURVE_POINTS } from "../climate/lambda";
-import { MAX_TEMPERATURE, MIN_TEMPERATURE, TemperatureRangeSchema, THERMAL_FORMS, ThermalTargetSchema, TrajectorySchema } from "../lifecycle/thermal";
+import { MAX_TEMPERATURE, MIN_TEMPERATURE, temperatureRangeProblems, TemperatureRangeSchema, THERMAL_FORMS, ThermalTargetSchema, trajectoryProblems, WarmingTrajectorySchema } from "../lifecycle/thermal";
 
 export const MAX_FIT_CSV_LENGTH = 200_000;
 export const MAX_FIT_POINTS = 5_000;
@@ -19,6 +19,15 @@ const temperature = (what: string) =>
     .min(MIN_TEMPERATURE, `The ${what} lies between ${MIN_TEMPERATURE} and ${MAX_TEMPERATURE} °C.`)
     .max(MAX_TEMPERATURE, `The ${what} lies between ${MIN_TEMPERATURE} and ${MAX_TEMPERATURE} °C.`);
 
+/** A λ(T) range with its order and width checked. */
+const RangeSchema = TemperatureRangeSchema.superRefine((r, ctx) => {
+  for (const p of temperatureRangeProblems(r)) ctx.addIssue({ code: "custom", path: [p.field], message: p.message });
+});
+/** A trajectory with consecutive years checked. */
+const TrajectorySchema = WarmingTrajectorySchema.superRefine((t, ctx) => {
+  for (const p of trajectoryProblems(t)) ctx.addIssue({ code: "custom", path: p.path, message: p.message });
+});
+
 const initialTotal = z
   .number({ error: "The starting population is a number of individuals." })
   .gt(0, "The starting population must be above 0.")
@@ -27,7 +36,7 @@ const initialTotal = z
 /** POST /climate/lambda: λ(T) of a (possibly unsaved) life cycle. */
 export const ClimateLambdaRequestSchema = z.strictObject({
   document: z.unknown(),
-  range: TemperatureRangeSchema,
+  range: RangeSchema,
   points: z
     .number({ error: "The number of points is a whole number." })
     .int("The number of points is a whole number.")
@@ -104,7 +113,8 @@ export interface WarmingRunResult extends ReplicateSummary {
   years: number[];
   /** The trajectory's mean temperatures, °C. */
   meanTemperatures: number[];
-  yearToYearSd: number;
+  /** Year-to-year SD of the temperatures, °C. */
+  sd: number;
   seed: number;
   threshold: number | null;
   timeStepUnit: string;

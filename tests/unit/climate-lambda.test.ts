@@ -3,17 +3,10 @@ import { EDGE_TOLERANCE, lambdaCurve, lambdaSlope, projectTrajectory, responseVa
 import { dominantEigen } from "../../shared/demography";
 import { buildMatrices, type LifeCycle } from "../../shared/lifecycle";
 import type { ThermalResponse } from "../../shared/lifecycle/thermal";
+import { warmableLifeCycle } from "../factories/climate";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 
-const juvenileHazard: ThermalResponse = { form: "arrhenius", appliesTo: "hazard", activationEnergy: 0.65, referenceTemperature: 20, valueAtReference: -Math.log(0.3) };
-const fecundity: ThermalResponse = { form: "gaussian-quadratic", appliesTo: "rate", valueAtOptimum: 2.4, optimum: 21, width: 5, criticalMaximum: 31 };
-
-/** The factory's three-stage life cycle with a hazard response on s_j and a performance curve on f. */
-function warmable(extra: Partial<Record<string, ThermalResponse>> = {}): LifeCycle {
-  const doc = threeStageLifeCycle();
-  const responses: Record<string, ThermalResponse | undefined> = { s_j: juvenileHazard, f: fecundity, ...extra };
-  return { ...doc, rates: doc.rates.map((r) => (responses[r.name] ? { ...r, thermal: responses[r.name] } : r)) };
-}
+const warmable = (extra: Record<string, ThermalResponse> = {}) => warmableLifeCycle(extra);
 
 /** λ at T by the independent route: rate overrides → buildMatrices → dominantEigen. */
 function lambdaByOverrides(doc: LifeCycle, T: number): number {
