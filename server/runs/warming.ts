@@ -24,7 +24,7 @@ export interface WarmingInput {
  * small matrix costs a few hundred of these): about 0.5 s on the 2-core
  * reference machine (bench/climate.ts).
  */
-const WORK_PER_CHUNK = 4e5;
+const WORK_PER_CHUNK = 1.5e6;
 
 const badSettings = (fields: { path: string; message: string }[]) =>
   new HttpError(400, `settings.${fields[0]!.path}: ${fields[0]!.message}`, "bad_request", fields.map((f) => ({ ...f, path: `settings.${f.path}` })));

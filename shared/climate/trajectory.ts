@@ -44,7 +44,7 @@ export function projectTrajectory(model: ThermalModel, years: readonly number[],
   let firstYearBelowOne: number | null = null;
   temperatures.forEach((T, i) => {
     model.matrixAt(T, a);
-    const lambda = dominantEigenDense(a, n, { second: false }).lambda;
+    const lambda = model.lambdaOf(a);
     annualLambda.push(lambda);
     if (firstYearBelowOne === null && lambda < 1) firstYearBelowOne = years[i]!;
     matvec(a, n, N, next);
@@ -103,7 +103,7 @@ export function simulateTrajectoryReplicates(
       tempSum[t]! += T;
       tempSumSq[t]! += T * T;
       model.matrixAt(T, a);
-      const lambda = dominantEigenDense(a, n, { second: false }).lambda;
+      const lambda = model.lambdaOf(a);
       if (lambda < 1) {
         belowCount[t]!++;
         if (firstBelow[r] === -1) firstBelow[r] = t;

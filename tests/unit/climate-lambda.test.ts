@@ -28,6 +28,21 @@ describe("λ(T)", () => {
     for (const T of [0, 12.5, 21, 27, 33]) expect(model.lambdaAt(T)).toBeCloseTo(lambdaByOverrides(doc, T), 12);
   });
 
+  it("keeps the warm-started λ solver exact over jumps in temperature, and for a reducible life cycle", () => {
+    // Independent route: dominantEigen on the matrix built from overrides. Order shuffled so warm starts come from far away.
+    const temps = [3, 35, 3.1, 20, -5, 20.05, 31, 0, 27.3, 12];
+    for (const T of temps) expect(Math.abs(model.lambdaAt(T) - lambdaByOverrides(doc, T))).toBeLessThan(1e-12 * lambdaByOverrides(doc, T));
+    // Post-reproductive stage with high survival makes the matrix reducible (a zero in the Perron vector).
+    const base = warmableLifeCycle();
+    const reducible: LifeCycle = {
+      ...base,
+      stages: [...base.stages, { id: "st_p", name: "Post-breeder", position: { x: 600, y: 0 } }],
+      transitions: [...base.transitions, { id: "tr_ap", from: "st_a", to: "st_p", kind: "growth", rate: 0.05 }, { id: "tr_pp", from: "st_p", to: "st_p", kind: "stasis", rate: 0.99 }],
+    };
+    const rm = thermalModel(reducible);
+    for (const T of [10, 20, 33, 21]) expect(Math.abs(rm.lambdaAt(T) - lambdaByOverrides(reducible, T))).toBeLessThan(1e-12);
+  });
+
   it("finds a persistence window whose edges have λ = 1 within 1e-9", () => {
     const curve = lambdaCurve(model, { min: 0, max: 40, points: 200 });
     expect(curve.window).toHaveLength(1);
