@@ -15,6 +15,7 @@ import { takeSnapshot } from "./services/snapshots";
 import { seedScenarioRun, withDemoScenarios } from "./seed/levers";
 import { seedReview } from "./seed/review";
 import { seedDemoUncertaintyRun, withDemoUncertainty } from "./seed/uncertainty";
+import { seedDemoClimate } from "./seed/climate";
 
 /** Invented people, species and places: the demo must never pass for real data. */
 export const DEMO_PASSWORD = "stagewright-demo";
@@ -159,6 +160,7 @@ if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.me
   console.log(created ? "Demo Study created." : "Demo Study already present.");
   if (await seedDemoRun(db, jobs, studyId)) console.log("Demo Risk run queued: the worker computes it in the background.");
   if (await seedDemoUncertaintyRun(db, jobs, studyId)) console.log("Demo Monte Carlo run queued.");
+  if (await seedDemoClimate(db, jobs, studyId)) console.log("Demo thermal responses and warming run added.");
   await jobs.stop();
   await pool.end();
 }
