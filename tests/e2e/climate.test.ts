@@ -7,11 +7,13 @@
 // saved document.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { thermalModel } from "../../shared/climate";
+import { responseValue, thermalModel } from "../../shared/climate";
+import { createRandom } from "../../shared/demography";
 import { upgradeLifeCycle } from "../../shared/lifecycle";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 import { launchBrowser, watchPageErrors } from "../helpers/browser";
 import { signUpAgent, startTestServer, type BrowserAgent, type TestServer } from "../helpers/server";
+import { startWorker } from "../helpers/worker";
 
 type Agent = BrowserAgent & { user: { email: string; password: string; name: string; id: string } };
 
@@ -114,6 +116,60 @@ describe("the Climate tab", () => {
       throw error;
     } finally {
       await page.close();
+      await browser.context.clearCookies();
+    }
+  });
+
+  it("an editor fits a Brière curve to an uploaded CSV, attaches it, and runs warming replicates with progress", async () => {
+    const worker = startWorker(server.databaseUrl);
+    const page = await browser.context.newPage();
+    const errors = watchPageErrors(page);
+    try {
+      await signIn(page, owner.user);
+      await page.goto(`${server.url}/life-cycles/${lifeCycleId}?tab=climate`);
+      await page.getByRole("heading", { name: "Fit a response to measurements" }).waitFor();
+
+      // A CSV with text in a numeric column is refused line by line, before anything is sent.
+      await page.getByLabel("Measurements (CSV)").setInputFiles({ name: "bad.csv", mimeType: "text/csv", buffer: Buffer.from("temperature,rate\n10,0.2\n15,lots\n") });
+      await page.getByText('Line 3, column 2 (value): "lots" is not a number.').waitFor();
+
+      const truth = { form: "briere", appliesTo: "rate", coefficient: 2e-3, lower: 6, upper: 30 } as const;
+      const rng = createRandom(77);
+      const rows = Array.from({ length: 16 }, (_, i) => 8 + i * 1.4).map((t) => `${t.toFixed(1)},${(responseValue(truth, t) + 0.02 * rng.normal()).toFixed(5)}`);
+      await page.getByLabel("Measurements (CSV)").setInputFiles({ name: "growth.csv", mimeType: "text/csv", buffer: Buffer.from(`temperature,rate\n${rows.join("\n")}\n`) });
+      await page.getByLabel("Form", { exact: true }).selectOption("briere");
+      await page.getByRole("button", { name: "Fit", exact: true }).click();
+      await page.getByText("The fit converged").waitFor();
+      const upperRow = page.getByRole("row", { name: /Upper limit T_L/ });
+      const [estimate, se] = (await upperRow.getByRole("cell").allTextContents()).map(Number);
+      expect(Math.abs(estimate! - 30)).toBeLessThanOrEqual(3 * se!);
+      await page.getByRole("img", { name: /with the fitted curve, and the residuals below/ }).waitFor();
+      await page.getByLabel("Attach the fitted curve to").selectOption({ label: "s_s" });
+      await page.getByRole("button", { name: "Attach", exact: true }).click();
+      await page.getByRole("heading", { name: "Response of s_s" }).waitFor();
+      expect(await page.getByLabel("Response form").inputValue()).toBe("briere");
+
+      // Warming: a trend from 18 °C at 3 °C per decade leaves the window; replicates run as a Run with progress.
+      await page.getByLabel("Baseline (°C)").fill("18");
+      await page.getByLabel("Trend (°C per decade)").fill("3");
+      await page.getByLabel("Years", { exact: true }).fill("40");
+      await page.getByText(/The annual λ first falls below 1 in \d{4}/).waitFor();
+      await page.getByRole("img", { name: /^Population size from 2026 to 2066 above the yearly mean temperature/ }).waitFor();
+      await page.getByLabel("Replicates", { exact: true }).fill("200");
+      const start = page.getByRole("button", { name: "Start replicates" });
+      await page.waitForFunction(() => ![...document.querySelectorAll("button")].find((b) => b.textContent === "Start replicates")?.hasAttribute("disabled"), undefined, { timeout: 30_000 });
+      await start.click();
+      await page.getByTestId("warming-result").waitFor({ timeout: 60_000 });
+      expect(await page.getByTestId("warming-result").textContent()).toMatch(/^200 replicates \(seed \d+, SD 0\.8 °C\)/);
+      await page.screenshot({ path: ".data/climate-warming.png", fullPage: true });
+      expect(errors()).toEqual([]);
+    } catch (error) {
+      await page.screenshot({ path: ".data/climate-failure-2.png", fullPage: true }).catch(() => undefined);
+      throw error;
+    } finally {
+      await page.close();
+      await browser.context.clearCookies();
+      await worker.stop();
     }
   });
 });
