@@ -15,6 +15,7 @@ import { storableText } from "./http/storable-text";
 import type { Mailer } from "./mail/mailer";
 import { accountRoutes } from "./routes/account";
 import { authRoutes } from "./routes/auth";
+import { climateRoutes } from "./routes/climate";
 import { devMailRoutes } from "./routes/dev-mail";
 import { leverRoutes } from "./routes/levers";
 import { fieldDataRoutes } from "./routes/field-data";
@@ -57,6 +58,7 @@ export function createApiRouter(deps: AppDeps): Router {
   leverRoutes(r, deps);
   fieldDataRoutes(r, deps);
   reportRoutes(r, deps);
+  climateRoutes(r, deps);
   if (deps.config.mailOutbox) devMailRoutes(r, deps);
   return r;
 }

@@ -16,6 +16,7 @@ import { seedScenarioRun, withDemoScenarios } from "./seed/levers";
 import { seedReview } from "./seed/review";
 import { seedDemoUncertaintyRun, withDemoUncertainty } from "./seed/uncertainty";
 import { seedFieldData } from "./seed/field-data";
+import { seedDemoClimate } from "./seed/climate";
 
 /** Invented people, species and places: the demo must never pass for real data. */
 export const DEMO_PASSWORD = "stagewright-demo";
@@ -161,6 +162,7 @@ if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.me
   if (await seedDemoRun(db, jobs, studyId)) console.log("Demo Risk run queued: the worker computes it in the background.");
   if (await seedDemoUncertaintyRun(db, jobs, studyId)) console.log("Demo Monte Carlo run queued.");
   if (await seedFieldData(db, jobs, studyId)) console.log("Demo Field data added; its λ bootstrap Run is queued.");
+  if (await seedDemoClimate(db, jobs, studyId)) console.log("Demo thermal responses and warming run added.");
   await jobs.stop();
   await pool.end();
 }

@@ -4,7 +4,7 @@ import { forbidden } from "../http/errors";
 
 const READ_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
 /** Writes in form only: they compute and store nothing, so a read token may call them. */
-const READ_ONLY_POSTS = new Set(["/analyze", "/levers", "/ltre"]);
+const READ_ONLY_POSTS = new Set(["/analyze", "/levers", "/ltre", "/climate/lambda", "/climate/fit", "/climate/trajectory"]);
 
 /** The scope a Bearer token needs for a request (path relative to /api/v1, Express or OpenAPI style). */
 export function scopeNeeded(method: string, path: string): ApiTokenScope {

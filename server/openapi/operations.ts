@@ -54,6 +54,7 @@ import {
   StartLifeCycleSchema,
   UploadSchema,
 } from "../../shared/schemas/field-data";
+import { ClimateFitRequestSchema, ClimateLambdaRequestSchema, ClimateTrajectoryRequestSchema } from "../../shared/schemas/climate";
 import { LeversRequestSchema, LtreRequestSchema } from "../../shared/schemas/levers";
 import { ReportQuerySchema } from "../../shared/schemas/report";
 import {
@@ -178,7 +179,7 @@ export const OPERATIONS: Operation[] = [
     path: "/account/tokens",
     tag: "API tokens",
     summary: "Mint an API token (signed in, not with a token)",
-    description: "scope \"read\" allows GET requests and POST /analyze, /levers and /ltre; \"read-write\" everything your roles allow. expiresInDays: null for a token that never expires.",
+    description: "scope \"read\" allows GET requests and POST /analyze, /levers, /ltre and /climate/lambda, /climate/fit, /climate/trajectory; \"read-write\" everything your roles allow. expiresInDays: null for a token that never expires.",
     access: "user",
     body: named("ApiTokenCreate", ApiTokenCreateSchema),
     responses: [created("The token, with its secret shown this once.", named("NewApiToken", NewApiTokenSchema))],
@@ -346,6 +347,35 @@ export const OPERATIONS: Operation[] = [
     access: "user",
     body: named("LtreRequest", LtreRequestSchema),
     responses: [ok("Contributions of each matrix entry and vital rate to the difference in λ.", { description: "LTRE contributions." })],
+  },
+
+  // Climate
+  {
+    method: "post",
+    path: "/climate/lambda",
+    tag: "Climate",
+    summary: "λ over temperature of a life-cycle document: the persistence window (λ ≥ 1) with its edges, the optimum and dλ/dT (stores nothing; read tokens may call it)",
+    access: "user",
+    body: named("ClimateLambdaRequest", ClimateLambdaRequestSchema),
+    responses: [ok("λ and the thermal rates at each temperature, the window's edges (λ = 1 within 1e-9), the optimum, the slope and clamped probabilities.", { description: "λ(T) of the document." })],
+  },
+  {
+    method: "post",
+    path: "/climate/fit",
+    tag: "Climate",
+    summary: "Fit a thermal response to measurements by nonlinear least squares, with standard errors from the Jacobian (stores nothing; read tokens may call it)",
+    access: "user",
+    body: named("ClimateFitRequest", ClimateFitRequestSchema),
+    responses: [ok("Estimates with SEs, convergence and the reason when it fails, residuals, the fitted curve and the response ready to attach.", { description: "The fit." })],
+  },
+  {
+    method: "post",
+    path: "/climate/trajectory",
+    tag: "Climate",
+    summary: "Project a life-cycle document through a warming trajectory's mean temperatures (stores nothing; read tokens may call it)",
+    access: "user",
+    body: named("ClimateTrajectoryRequest", ClimateTrajectoryRequestSchema),
+    responses: [ok("N(t), each year's λ and the first year with λ below 1.", { description: "The projection." })],
   },
 
   // Review

@@ -2,7 +2,7 @@ import { z } from "zod";
 import type { StochasticResult } from "../demography";
 import type { CriterionEAssessment } from "../risk";
 
-export const RUN_KINDS = ["risk", "uncertainty", "bootstrap"] as const;
+export const RUN_KINDS = ["risk", "uncertainty", "bootstrap", "warming"] as const;
 export const RunKindSchema = z.enum(RUN_KINDS, { error: `The run kind is one of: ${RUN_KINDS.join(", ")}.` });
 export type RunKindName = z.infer<typeof RunKindSchema>;
 

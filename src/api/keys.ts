@@ -80,6 +80,13 @@ export const queryKeys = {
       [...queryKeys.analyze.all, "projection", documentFingerprint, initial, steps] as const,
   },
 
+  /** Climate computations (stateless POSTs), keyed by a fingerprint of the document and their options. */
+  climate: {
+    all: ["climate"] as const,
+    lambda: (documentFingerprint: string, min: number, max: number, at: number | null) => [...queryKeys.climate.all, "lambda", documentFingerprint, min, max, at] as const,
+    trajectory: (fingerprint: string, initialTotal: number) => [...queryKeys.climate.all, "trajectory", fingerprint, initialTotal] as const,
+  },
+
   /** Invitation previews are read before sign-in, keyed by their link token. */
   invitations: {
     all: ["invitations"] as const,

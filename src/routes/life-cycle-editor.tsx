@@ -44,13 +44,14 @@ const RatesPanel = lazy(() => import("../features/rates").then((m) => ({ default
 const MatrixPanel = lazy(() => import("../features/matrix").then((m) => ({ default: m.MatrixPanel })));
 const ResultsPanel = lazy(() => import("../features/results").then((m) => ({ default: m.ResultsPanel })));
 const LeversPanel = lazy(() => import("../features/levers").then((m) => ({ default: m.LeversPanel })));
+const ClimatePanel = lazy(() => import("../features/climate").then((m) => ({ default: m.ClimatePanel })));
 const RiskPanel = lazy(() => import("../features/risk").then((m) => ({ default: m.RiskPanel })));
 const UncertaintyPanel = lazy(() => import("../features/uncertainty").then((m) => ({ default: m.UncertaintyPanel })));
 const HistoryPanel = lazy(() => import("../features/history").then((m) => ({ default: m.HistoryPanel })));
 const ExportPanel = lazy(() => import("../features/export").then((m) => ({ default: m.ExportPanel })));
 const ReviewPanel = lazy(() => import("../features/review").then((m) => ({ default: m.ReviewPanel })));
 
-type TabId = "diagram" | "rates" | "matrix" | "results" | "uncertainty" | "levers" | "risk" | "review" | "history" | "export";
+type TabId = "diagram" | "rates" | "matrix" | "results" | "uncertainty" | "levers" | "climate" | "risk" | "review" | "history" | "export";
 
 interface TabContext {
   /** The panel props for one tab (each tab gets its own `onSelect`). */
@@ -58,6 +59,7 @@ interface TabContext {
   levers: LeversPanelProps;
   risk: RiskPanelProps;
   uncertainty: UncertaintyPanelProps;
+  climate: { lifeCycleId: string; saved: boolean };
   history: HistoryPanelProps;
   exports: ExportPanelProps;
   review: ReviewPanelProps;
@@ -70,6 +72,7 @@ const TABS: readonly { id: TabId; label: string; render: (c: TabContext) => Reac
   { id: "results", label: "Results", render: (c) => <ResultsPanel {...c.panel("results")} /> },
   { id: "uncertainty", label: "Uncertainty", render: (c) => <UncertaintyPanel {...c.uncertainty} /> },
   { id: "levers", label: "Levers", render: (c) => <LeversPanel {...c.levers} /> },
+  { id: "climate", label: "Climate", render: (c) => <ClimatePanel {...c.panel("climate")} {...c.climate} /> },
   { id: "risk", label: "Risk", render: (c) => <RiskPanel {...c.risk} /> },
   { id: "review", label: "Review", render: (c) => <ReviewPanel {...c.review} /> },
   // Keyed by the compared snapshot, so "See the changes" opens a fresh comparison.
@@ -155,6 +158,7 @@ function LifeCycleEditor({ initial }: { initial: LifeCycleRecord }) {
     levers: { ...panelProps("levers"), lifeCycleId: initial.id, studyId: study.id, revision: editor.present.revision, saveStatus: editor.save.status },
     risk: { lifeCycleId: initial.id, studyId: study.id, document, analysis, readOnly, saveStatus: editor.save.status, version: editor.version },
     uncertainty: { lifeCycleId: initial.id, document, analysis, readOnly, saveStatus: editor.save.status, version: editor.version },
+    climate: { lifeCycleId: initial.id, saved: editor.save.status === "saved" },
     history: { lifeCycleId: initial.id, version: editor.version, readOnly, onRestored: editor.reset, compareWith: search.get("compare") },
     exports: { document, analysis },
     review: {

@@ -254,6 +254,15 @@ const MATRIX: Record<string, Entry> = {
   "POST /datasets/:datasetId/life-cycles": { access: "editor", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}/life-cycles`, body: { name: "From data" } }) },
   "GET /datasets/:datasetId/runs": { access: "viewer", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}/runs` }) },
   "POST /datasets/:datasetId/runs": { access: "editor", request: async (c) => ({ path: `/datasets/${await freshDataset(c)}/runs`, body: { kind: "bootstrap", settings: { resamples: 2000 } } }) },
+  "POST /climate/lambda": { access: "user", request: async () => ({ path: "/climate/lambda", body: { document: threeStageLifeCycle(), range: { min: 0, max: 30 }, points: 20 } }) },
+  "POST /climate/fit": {
+    access: "user",
+    request: async () => ({ path: "/climate/fit", body: { form: "arrhenius", measurements: [5, 10, 15, 20, 25].map((t) => ({ temperature: t, value: 0.1 * Math.exp(0.07 * t) })) } }),
+  },
+  "POST /climate/trajectory": {
+    access: "user",
+    request: async () => ({ path: "/climate/trajectory", body: { document: threeStageLifeCycle(), trajectory: { kind: "trend", startYear: 2025, years: 10, baseline: 15, trendPerDecade: 0.5, sd: 0 } } }),
+  },
   "POST /analyze": { access: "user", request: async () => ({ path: "/analyze", body: { matrix: [[0.5, 1.2], [0.4, 0.8]] } }) },
   "POST /levers": { access: "user", request: async () => ({ path: "/levers", body: { document: threeStageLifeCycle(), breakEven: false } }) },
   "POST /ltre": { access: "user", request: async () => ({ path: "/ltre", body: { reference: threeStageLifeCycle(), comparison: threeStageLifeCycle() } }) },

@@ -5,6 +5,7 @@
  * that uses the rate; each rate lists the arrows whose formulas use it.
  */
 import { useEffect, useMemo, useRef, useState } from "react";
+import { useSearchParams } from "react-router";
 import { checkFormula, MAX_NOTES_LENGTH, MAX_SOURCE_LENGTH, MAX_UNIT_LENGTH, newId, type LifeCycle, type Transition, type VitalRate } from "../../../shared/lifecycle";
 import { Alert } from "../../components/ui/alert";
 import { Button } from "../../components/ui/button";
@@ -309,6 +310,7 @@ export function RatesPanel({ document: doc, onChange, readOnly, selection, comme
                           ))}
                         </ul>
                       )}
+                      <ThermalLink rate={rate} readOnly={readOnly} />
                     </td>
                     {!readOnly && (
                       <td className="px-2 py-2 text-right">
@@ -398,4 +400,29 @@ function unknownRateNames(doc: LifeCycle): { name: string; arrows: Transition[] 
     }
   }
   return [...found].map(([name, arrows]) => ({ name, arrows }));
+}
+
+const THERMAL_FORM_NAMES = { arrhenius: "Boltzmann–Arrhenius", schoolfield: "Sharpe–Schoolfield", "gaussian-quadratic": "Gaussian–quadratic", briere: "Brière" } as const;
+
+/** The way from a rate to its temperature response on the Climate tab. */
+function ThermalLink({ rate, readOnly }: { rate: VitalRate; readOnly: boolean }) {
+  const [, setSearch] = useSearchParams();
+  if (readOnly && !rate.thermal) return null;
+  const open = () =>
+    setSearch(
+      (params) => {
+        const next = new URLSearchParams(params);
+        next.set("tab", "climate");
+        next.set("rate", rate.id);
+        return next;
+      },
+      { replace: true },
+    );
+  return (
+    <button type="button" className="mt-1 block text-xs font-bold text-indigo underline-offset-2 hover:underline" onClick={open}>
+      {rate.thermal
+        ? `Temperature: ${THERMAL_FORM_NAMES[rate.thermal.form]}${rate.thermal.appliesTo === "hazard" ? " on a hazard" : ""} →`
+        : `Add a temperature response to ${rate.name} →`}
+    </button>
+  );
 }

@@ -1,0 +1,1 @@
+export { ClimatePanel, type ClimatePanelProps } from "./climate-panel";

@@ -1,0 +1,15 @@
+import type { LifeCycle } from "../../shared/lifecycle";
+import type { ThermalResponse } from "../../shared/lifecycle/thermal";
+import { threeStageLifeCycle } from "./life-cycles";
+
+/** Juvenile survival through an Arrhenius hazard (0.3 at 20 °C). */
+export const JUVENILE_HAZARD: ThermalResponse = { form: "arrhenius", appliesTo: "hazard", activationEnergy: 0.65, referenceTemperature: 20, valueAtReference: -Math.log(0.3) };
+/** Fecundity on a Gaussian–quadratic curve peaking at 21 °C. */
+export const FECUNDITY_CURVE: ThermalResponse = { form: "gaussian-quadratic", appliesTo: "rate", valueAtOptimum: 2.4, optimum: 21, width: 5, criticalMaximum: 31 };
+
+/** The factory's three-stage life cycle with thermal responses on s_j and f (λ ≥ 1 roughly between 12 and 28 °C). */
+export function warmableLifeCycle(extra: Record<string, ThermalResponse> = {}, overrides: Partial<LifeCycle> = {}): LifeCycle {
+  const doc = threeStageLifeCycle(overrides);
+  const responses: Record<string, ThermalResponse> = { s_j: JUVENILE_HAZARD, f: FECUNDITY_CURVE, ...extra };
+  return { ...doc, rates: doc.rates.map((r) => (responses[r.name] ? { ...r, thermal: responses[r.name] } : r)) };
+}
