@@ -40,7 +40,7 @@ describe("report page", () => {
       await page.waitForURL((url) => !url.pathname.startsWith("/sign-in"));
       await page.goto(`${server.url}/life-cycles/${lifeCycleId}`);
       const header = page.locator("output[data-lambda]");
-      await expect.poll(() => header.innerText()).toMatch(/^\d\.\d{4}$/);
+      await expect.poll(() => header.innerText(), { timeout: 20_000 }).toMatch(/^\d\.\d{4}$/);
       const onScreen = (await header.innerText()).trim();
 
       await page.getByRole("link", { name: "Report" }).click();
