@@ -35,7 +35,9 @@ function oneFile(): RequestHandler {
         const field = err.field ?? "file";
         return next(new HttpError(400, `${field}: ${err.message}.`, "bad_request", [{ path: field, message: err.message }]));
       }
-      next(err);
+      // Anything else multer's form parser throws (no boundary, a truncated or malformed part) is a broken request, not a server fault.
+      const message = err instanceof Error ? err.message : "unreadable form";
+      next(new HttpError(400, `The upload is not a well-formed multipart form (${message}). Send the CSV as the "file" field.`, "bad_request", [{ path: "file", message }]));
     });
   };
 }
