@@ -36,6 +36,8 @@ const arg = (name: string, fallback: number) => Number(process.argv.find((a) => 
 const DURATION = arg("duration", 30);
 const RUNS = arg("runs", 3);
 const CONNECTIONS = arg("connections", 10);
+/** `--processes=N`: web server processes (WEB_PROCESSES); production's default is one per core. */
+const PROCESSES = arg("processes", os.availableParallelism());
 const WRITERS = 8;
 const SESSION_SECRET = randomBytes(24).toString("hex");
 /** `--cpu-prof`: the server writes a V8 CPU profile to the temp folder on exit (open it in DevTools); its self time per file is listed. */
@@ -45,6 +47,7 @@ const PROFILE_DIR = path.join(os.tmpdir(), "sw-load-profile");
 const ONLY = new Set((process.argv.find((a) => a.startsWith("--only="))?.slice("--only=".length) ?? "analyze,read,mixed").split(","));
 const TARGET_RPS = 1500;
 const TARGET_P99_MS = 50;
+let server: ChildProcess | undefined;
 
 interface SetupHelpers {
   ensurePostgres(): string;
@@ -103,7 +106,7 @@ function tenStageMatrix(): { matrix: number[][]; fertility: number[][] } {
 function startServer(databaseUrl: string, port: number): Promise<ChildProcess> {
   const child = spawn(process.execPath, [...(CPU_PROFILE ? ["--cpu-prof", "--cpu-prof-dir", PROFILE_DIR] : []), "--import", "tsx", "server/index.ts"], {
     cwd: root,
-    env: { ...process.env, NODE_ENV: "production", DATABASE_URL: databaseUrl, PORT: String(port), HOST: "127.0.0.1", SESSION_SECRET, MAIL_OUTBOX: "off", STATIC_DIR: "/nonexistent" },
+    env: { ...process.env, NODE_ENV: "production", DATABASE_URL: databaseUrl, PORT: String(port), HOST: "127.0.0.1", SESSION_SECRET, MAIL_OUTBOX: "off", STATIC_DIR: "/nonexistent", WEB_PROCESSES: String(PROCESSES) },
     stdio: ["ignore", "pipe", "inherit"],
   });
   return new Promise((resolve, reject) => {
@@ -124,17 +127,60 @@ interface Figures {
   non2xx: number;
   requests: number;
   load: string;
+  /** Server CPU time per request (all its processes), ms: the figure least disturbed by other work on the machine. */
+  serverCpuMs: number;
+  /** The load generator's own CPU per request, ms: on 2 cores it competes with the server. */
+  clientCpuMs: number;
+}
+
+/** CPU seconds (user + system) used so far by a process and all its descendants that are still running (Linux /proc). */
+function treeCpuSeconds(pid: number): number {
+  const ticks = 100; // USER_HZ on Linux
+  let total = 0;
+  const stat = (p: number) => {
+    try {
+      const fields = fs.readFileSync(`/proc/${p}/stat`, "utf8").split(") ")[1]!.split(" ");
+      return { ppid: Number(fields[1]), cpu: (Number(fields[11]) + Number(fields[12])) / ticks };
+    } catch {
+      return null;
+    }
+  };
+  const all = fs.readdirSync("/proc").filter((d) => /^\d+$/.test(d)).map(Number);
+  const children = new Map<number, number[]>();
+  for (const p of all) {
+    const s = stat(p);
+    if (s) children.set(s.ppid, [...(children.get(s.ppid) ?? []), p]);
+  }
+  const walk = (p: number) => {
+    total += stat(p)?.cpu ?? 0;
+    for (const c of children.get(p) ?? []) walk(c);
+  };
+  walk(pid);
+  return total;
 }
 
 async function cannon(opts: autocannon.Options): Promise<Figures> {
+  const serverCpu = treeCpuSeconds(server!.pid!);
+  const ownCpu = process.cpuUsage();
   const r = await autocannon({ connections: CONNECTIONS, duration: DURATION, ...opts });
-  return { rps: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, errors: r.errors + r.timeouts, non2xx: r.non2xx, requests: r.requests.total, load: load() };
+  const own = process.cpuUsage(ownCpu);
+  return {
+    rps: r.requests.average,
+    p50: r.latency.p50,
+    p99: r.latency.p99,
+    errors: r.errors + r.timeouts,
+    non2xx: r.non2xx,
+    requests: r.requests.total,
+    load: load(),
+    serverCpuMs: ((treeCpuSeconds(server!.pid!) - serverCpu) * 1000) / r.requests.total,
+    clientCpuMs: (own.user + own.system) / 1000 / r.requests.total,
+  };
 }
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 function report(name: string, runs: Figures[]) {
   for (const [i, f] of runs.entries()) {
-    console.log(`  ${name} run ${i + 1}: ${f.rps.toFixed(0)} req/s, p50 ${f.p50} ms, p99 ${f.p99} ms, ${f.requests} requests, errors ${f.errors}, non-2xx ${f.non2xx} (load average ${f.load})`);
+    console.log(`  ${name} run ${i + 1}: ${f.rps.toFixed(0)} req/s, p50 ${f.p50} ms, p99 ${f.p99} ms, ${f.requests} requests, errors ${f.errors}, non-2xx ${f.non2xx}; CPU per request: server ${f.serverCpuMs.toFixed(2)} ms, autocannon ${f.clientCpuMs.toFixed(2)} ms (load average ${f.load})`);
   }
   const m = { rps: median(runs.map((r) => r.rps)), p50: median(runs.map((r) => r.p50)), p99: median(runs.map((r) => r.p99)) };
   console.log(`  ${name} median of ${runs.length}: ${m.rps.toFixed(0)} req/s, p50 ${m.p50} ms, p99 ${m.p99} ms`);
@@ -146,7 +192,6 @@ async function main() {
   const bin = setup.ensurePostgres();
   const pgPort = Number(process.env.STAGEWRIGHT_BENCH_PG_PORT ?? (await freePort()));
   const cluster = setup.startCluster(bin, "pg-bench-load", pgPort, { durable: false });
-  let server: ChildProcess | undefined;
   setup.onShutdown(() => {
     server?.kill("SIGTERM");
     cluster.stop();
@@ -184,7 +229,7 @@ async function main() {
   const readBytes = (await read.arrayBuffer()).byteLength;
   const analyzeBytes = JSON.stringify(probeBody).length;
 
-  console.log(`Load bench: ${os.cpus().length} × ${os.cpus()[0]?.model.trim()}, Node ${process.version}; ${RUNS} runs × ${DURATION} s, ${CONNECTIONS} connections; load average before: ${load()}`);
+  console.log(`Load bench: ${os.cpus().length} × ${os.cpus()[0]?.model.trim()}, Node ${process.version}; ${PROCESSES} web server process${PROCESSES > 1 ? "es" : ""}; ${RUNS} runs × ${DURATION} s, ${CONNECTIONS} connections; load average before: ${load()}`);
   console.log(`POST /api/v1/analyze (10 stages, Bearer token; answer ${analyzeBytes} bytes, λ = ${expected.toFixed(4)}):`);
   const analyzeRuns: Figures[] = [];
   for (let i = 0; i < (ONLY.has("analyze") ? RUNS : 0); i++) {

@@ -1,6 +1,6 @@
 import connectPgSimple from "connect-pg-simple";
 import cookieParser from "cookie-parser";
-import express, { Router, type Express } from "express";
+import express, { Router, type Express, type RequestHandler } from "express";
 import session from "express-session";
 import helmet from "helmet";
 import fs from "node:fs";
@@ -67,15 +67,21 @@ export function createApp(deps: AppDeps): Express {
   const { config, db, pool } = deps;
   const app = express();
   app.disable("x-powered-by");
+  // JSON answers are computed afresh for each request and nothing revalidates them: hashing every one for an ETag only cost time.
+  // (Static files keep their own ETags.)
+  app.disable("etag");
   app.set("trust proxy", "loopback");
   app.use(helmet({ contentSecurityPolicy: { directives: { "img-src": ["'self'", "data:", "blob:"], "upgrade-insecure-requests": null } } }));
 
   const api = express.Router();
   api.use(express.json({ limit: JSON_LIMIT }));
   api.use(storableText);
-  api.use(cookieParser());
+  // Scripts authenticate with `Authorization: Bearer <token>` and carry no cookie credentials, so their
+  // requests skip the cookie, session and CSRF layers altogether (no session row is read or minted).
+  const cookieAuth = Router();
+  cookieAuth.use(cookieParser());
   const PgStore = connectPgSimple(session);
-  api.use(
+  cookieAuth.use(
     session({
       store: new PgStore({ pool, tableName: "session", createTableIfMissing: false }),
       name: "sw_session",
@@ -92,13 +98,16 @@ export function createApp(deps: AppDeps): Express {
   authn.deserializeUser((id: string, done) => {
     findUserById(db, id).then((u) => done(null, u ?? false), done);
   });
-  api.use(authn.initialize());
-  api.use(authn.session());
-  // Scripts authenticate with `Authorization: Bearer <token>`; such requests carry no cookie credentials.
-  api.use(async (req, _res, next) => {
-    const header = req.get("authorization");
-    if (!header) return next();
-    const match = /^Bearer\s+(\S+)$/i.exec(header);
+  cookieAuth.use(authn.initialize());
+  cookieAuth.use(authn.session());
+  cookieAuth.use((req, _res, next) => {
+    if (req.user) req.authVia = "session";
+    next();
+  });
+  cookieAuth.use(csrfProtection(config.sessionSecret, { secureCookie: config.publicUrl.startsWith("https:") }));
+
+  const bearerAuth: RequestHandler = async (req, _res, next) => {
+    const match = /^Bearer\s+(\S+)$/i.exec(req.get("authorization")!);
     if (!match) return next(new HttpError(401, "The Authorization header must be “Bearer <token>”."));
     const check = await checkApiToken(db, match[1]!);
     if (!check.ok) return next(new HttpError(401, check.message));
@@ -106,12 +115,8 @@ export function createApp(deps: AppDeps): Express {
     req.authVia = "token";
     req.tokenScope = check.scope;
     next();
-  });
-  api.use((req, _res, next) => {
-    if (req.user && !req.authVia) req.authVia = "session";
-    next();
-  });
-  api.use(csrfProtection(config.sessionSecret, { secureCookie: config.publicUrl.startsWith("https:") }));
+  };
+  api.use((req, res, next) => (!req.headers.authorization ? cookieAuth(req, res, next) : bearerAuth(req, res, next)));
   api.use(tokenScopeCheck);
   api.use(createApiRouter(deps));
   api.use(apiNotFound);

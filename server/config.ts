@@ -1,3 +1,4 @@
+import os from "node:os";
 import { z } from "zod";
 
 const EnvSchema = z.object({
@@ -19,6 +20,8 @@ const EnvSchema = z.object({
   STATIC_DIR: z.string().optional(),
   /** Largest Study export (zip contents before compression), in megabytes. */
   EXPORT_LIMIT_MB: z.coerce.number().positive().default(200),
+  /** Web server processes sharing the port (node:cluster); default one per core in production, else one. */
+  WEB_PROCESSES: z.coerce.number().int().min(1).max(64).optional(),
 });
 
 export type Config = {
@@ -37,6 +40,8 @@ export type Config = {
   exportLimitBytes: number;
   /** API tokens one account may mint per window. */
   tokenRateLimit: { windowMs: number; max: number };
+  /** How many web server processes share the port (see server/index.ts). */
+  webProcesses: number;
 };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -64,5 +69,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     authRateLimit: { windowMs: 15 * 60_000, max: 20 },
     exportLimitBytes: Math.round(e.EXPORT_LIMIT_MB * 1_048_576),
     tokenRateLimit: { windowMs: 60 * 60_000, max: 20 },
+    webProcesses: e.WEB_PROCESSES ?? (e.NODE_ENV === "production" ? os.availableParallelism() : 1),
   };
 }

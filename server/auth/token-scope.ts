@@ -20,7 +20,10 @@ export const tokenScopeCheck: RequestHandler = (req, _res, next) => {
   next(forbidden("This API token may only read. Mint a read-write token in Settings to change things."));
 };
 
-/** Tokens and passwords are managed signed in to the web app: a leaked token cannot mint more tokens or lock its owner out. */
+/**
+ * Signing in and out, and managing tokens and passwords, happen in the web app: a leaked
+ * token cannot mint more tokens or lock its owner out, and token requests carry no session.
+ */
 export const sessionOnly: RequestHandler = (req, _res, next) => {
-  next(req.authVia === "token" ? forbidden("Manage passwords and API tokens signed in to Stagewright, not with an API token.") : undefined);
+  next(req.authVia === "token" ? forbidden("Sign in, manage passwords and API tokens in the Stagewright web app, not with an API token.") : undefined);
 };

@@ -3,6 +3,7 @@ import { rateLimit } from "express-rate-limit";
 import { ApiTokenCreateSchema, PasswordChangeSchema, ProfileUpdateSchema } from "../../shared/schemas/auth";
 import type { AppDeps } from "../app";
 import { HttpError } from "../http/errors";
+import { rateLimitStore } from "../http/rate-limit-store";
 import { currentUser, signedIn, uuidParam } from "../auth/authorize";
 import { sessionOnly } from "../auth/token-scope";
 import { createApiToken, listApiTokens, revokeApiToken } from "../services/api-tokens";
@@ -11,6 +12,7 @@ import { changePassword, updateProfile } from "../services/users";
 export function accountRoutes(r: Router, { db, config }: AppDeps): void {
   // Per account: a script stuck in a loop (or a stolen session) cannot mint tokens without end.
   const mintLimiter = rateLimit({
+    ...rateLimitStore("mint"),
     windowMs: config.tokenRateLimit.windowMs,
     limit: config.tokenRateLimit.max,
     standardHeaders: "draft-8",

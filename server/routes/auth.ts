@@ -8,7 +8,9 @@ import {
   SignUpSchema,
 } from "../../shared/schemas/auth";
 import type { AppDeps } from "../app";
+import { sessionOnly } from "../auth/token-scope";
 import { HttpError } from "../http/errors";
+import { rateLimitStore } from "../http/rate-limit-store";
 import { confirmPasswordReset, requestPasswordReset } from "../services/password-reset";
 import { confirmSignUp, requestSignUp, signUpPendingMessage } from "../services/sign-up";
 import { verifyCredentials } from "../services/users";
@@ -17,6 +19,7 @@ export function authRoutes(r: Router, deps: AppDeps): void {
   const { db, config } = deps;
   // Per client address and e-mail, so one noisy address cannot lock everyone out.
   const limiter = rateLimit({
+    ...rateLimitStore("auth"),
     windowMs: config.authRateLimit.windowMs,
     limit: config.authRateLimit.max,
     standardHeaders: "draft-8",
@@ -30,7 +33,7 @@ export function authRoutes(r: Router, deps: AppDeps): void {
   });
 
   // The same answer (202) for a new and a registered address; the e-mail tells them apart. See services/sign-up.ts.
-  r.post("/auth/sign-up", limiter, async (req, res) => {
+  r.post("/auth/sign-up", sessionOnly, limiter, async (req, res) => {
     const input = SignUpSchema.parse(req.body);
     const done = await requestSignUp(db, { mailer: deps.mailer, publicUrl: config.publicUrl }, input);
     if (!done) {
@@ -42,14 +45,14 @@ export function authRoutes(r: Router, deps: AppDeps): void {
   });
 
   // The link carries 32 random bytes: guessing one is hopeless, so no limit is needed here.
-  r.post("/auth/sign-up/confirm", async (req, res) => {
+  r.post("/auth/sign-up/confirm", sessionOnly, async (req, res) => {
     const { token } = SignUpConfirmSchema.parse(req.body);
     const done = await confirmSignUp(db, token);
     await login(req, done.user);
     res.status(201).json(done);
   });
 
-  r.post("/auth/sign-in", limiter, async (req, res) => {
+  r.post("/auth/sign-in", sessionOnly, limiter, async (req, res) => {
     const input = SignInSchema.parse(req.body);
     const user = await verifyCredentials(db, input.email, input.password);
     if (!user) throw new HttpError(401, "E-mail or password is wrong.");
@@ -57,7 +60,7 @@ export function authRoutes(r: Router, deps: AppDeps): void {
     res.json({ user });
   });
 
-  r.post("/auth/sign-out", async (req, res) => {
+  r.post("/auth/sign-out", sessionOnly, async (req, res) => {
     await new Promise<void>((resolve, reject) => req.logout((err) => (err ? reject(err) : resolve())));
     res.status(204).end();
   });

@@ -1,4 +1,4 @@
-import { and, desc, eq, isNull } from "drizzle-orm";
+import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import type { ApiToken, ApiTokenScope, NewApiToken } from "../../shared/schemas/auth";
 import type { SessionUser } from "../auth/types";
 import { newSecret, sha256 } from "../auth/secrets";
@@ -53,9 +53,12 @@ export type TokenCheck =
   | { ok: true; user: SessionUser; scope: ApiTokenScope }
   | { ok: false; reason: "unknown" | "revoked" | "expired"; message: string };
 
-/** Who a Bearer token speaks for and what it may do; unknown, revoked and expired tokens are refused with a reason. */
-export async function checkApiToken(db: Db, token: string): Promise<TokenCheck> {
-  const [row] = await db
+/**
+ * The lookup behind every Bearer request, prepared once per database handle:
+ * scripts call in tight loops, and building the SQL each time cost more than running it.
+ */
+const buildLookup = (db: Db) =>
+  db
     .select({
       tokenId: apiTokens.id,
       id: users.id,
@@ -68,7 +71,18 @@ export async function checkApiToken(db: Db, token: string): Promise<TokenCheck> 
     })
     .from(apiTokens)
     .innerJoin(users, eq(users.id, apiTokens.userId))
-    .where(eq(apiTokens.tokenHash, sha256(token)));
+    .where(eq(apiTokens.tokenHash, sql.placeholder("hash")))
+    .prepare("api_token_check");
+const lookups = new WeakMap<Db, ReturnType<typeof buildLookup>>();
+function tokenLookup(db: Db) {
+  let lookup = lookups.get(db);
+  if (!lookup) lookups.set(db, (lookup = buildLookup(db)));
+  return lookup;
+}
+
+/** Who a Bearer token speaks for and what it may do; unknown, revoked and expired tokens are refused with a reason. */
+export async function checkApiToken(db: Db, token: string): Promise<TokenCheck> {
+  const [row] = await tokenLookup(db).execute({ hash: sha256(token) });
   if (!row) return { ok: false, reason: "unknown", message: "The API token is not valid: it may be mistyped. Mint a new one in Settings." };
   if (row.revokedAt) return { ok: false, reason: "revoked", message: "The API token was revoked. Mint a new one in Settings." };
   if (row.expiresAt && row.expiresAt.getTime() <= Date.now()) {

@@ -67,10 +67,19 @@ describe("API tokens: scope", () => {
     expect(res.status).toBe(201);
   });
 
-  it("no token mints or revokes tokens or changes the password", async () => {
+  it("no token mints or revokes tokens, changes the password, or signs in, up or out", async () => {
     const { token, id } = await mint({ name: "writer 2", scope: "read-write", expiresInDays: 1 });
     const c = as(token);
-    for (const res of [await c.post("/account/tokens", { name: "child", scope: "read-write", expiresInDays: null }), await c.delete(`/account/tokens/${id}`), await c.post("/account/password", { currentPassword: "correct horse battery", newPassword: "another long password" })]) {
+    for (const res of [
+      await c.post("/account/tokens", { name: "child", scope: "read-write", expiresInDays: null }),
+      await c.delete(`/account/tokens/${id}`),
+      await c.post("/account/password", { currentPassword: "correct horse battery", newPassword: "another long password" }),
+      // Token requests carry no session to sign in to or out of.
+      await c.post("/auth/sign-in", { email: "someone@example.org", password: "correct horse battery" }),
+      await c.post("/auth/sign-out", {}),
+      await c.post("/auth/sign-up", { email: "new-by-token@example.org", name: "New", password: "correct horse battery" }),
+      await c.post("/auth/sign-up/confirm", { token: "x".repeat(43) }),
+    ]) {
       expect(res.status).toBe(403);
       expect(res.body.error.message).toMatch(/not with an API token/);
     }
