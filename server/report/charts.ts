@@ -4,15 +4,17 @@
  * registered.
  */
 import { BarChart, HeatmapChart, LineChart } from "echarts/charts";
-import { GridComponent, LegendComponent, VisualMapComponent } from "echarts/components";
+import { GridComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, VisualMapComponent } from "echarts/components";
 import * as echarts from "echarts/core";
 import { SVGRenderer } from "echarts/renderers";
 import { CLAY, INDIGO, INK, PAPER, SPRUCE } from "../../shared/diagram/palette";
 import { formatNumber } from "../../shared/format/number-format";
+import type { LambdaCurve } from "../../shared/climate";
 import type { ScenarioComparison } from "../../shared/levers";
+import type { WarmingRunResult } from "../../shared/schemas/climate";
 import type { RiskRunResult } from "../../shared/schemas/runs";
 
-echarts.use([HeatmapChart, BarChart, LineChart, GridComponent, VisualMapComponent, LegendComponent, SVGRenderer]);
+echarts.use([HeatmapChart, BarChart, LineChart, GridComponent, VisualMapComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, SVGRenderer]);
 
 const FONT = { fontFamily: "DejaVu Sans, sans-serif", color: INK };
 
@@ -111,6 +113,92 @@ export function scenarioChart(comparison: ScenarioComparison): string | null {
         label: { show: true, position: "top", fontSize: 10, formatter: (p: { value: number }) => p.value.toFixed(4) },
       },
       { name: "λ = 1", type: "line", data: names.map(() => 1), symbol: "none", lineStyle: { color: INDIGO, type: "dashed", width: 1 }, itemStyle: { color: INDIGO } },
+    ],
+  });
+}
+
+const celsius = (t: number) => `${formatNumber(t, 4)} °C`;
+
+/**
+ * λ over temperature with the persistence window (λ ≥ 1) shaded, λ = 1
+ * dashed, each window edge marked with its temperature and the optimum dotted.
+ */
+export function climateChart(curve: LambdaCurve, timeStepUnit: string): string {
+  const { temperatures, lambda } = curve;
+  // λ = 1 always in view; the axis hugs the curve so its rise and fall can be read.
+  const finite = lambda.filter(Number.isFinite);
+  const lo = Math.min(1, ...finite);
+  const hi = Math.max(1, ...finite);
+  const pad = Math.max(0.02, 0.08 * (hi - lo));
+  // Round the ends to a step that gives about five ticks, so the axis ends on a labelled value.
+  const step = [0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1, 2, 5].find((x) => (hi - lo + 2 * pad) / x <= 8) ?? 10;
+  const yMin = Math.max(0, Math.floor((lo - pad) / step) * step);
+  const yMax = Math.ceil((hi + pad) / step) * step;
+  const edges = curve.window.flatMap((w) => [w.lower, w.upper].filter((e) => e !== null));
+  return render(540, 300, {
+    grid: { left: 60, right: 30, top: 44, bottom: 70 },
+    legend: { bottom: 0, textStyle: FONT, data: ["λ(T)", "λ = 1"] },
+    xAxis: { type: "value", name: "temperature (°C)", nameLocation: "middle", nameGap: 26, min: temperatures[0], max: temperatures[temperatures.length - 1] },
+    yAxis: { type: "value", name: `λ (per ${timeStepUnit})`, min: Number(yMin.toFixed(2)), max: Number(yMax.toFixed(2)), interval: step, axisLabel: { formatter: (x: number) => formatNumber(x, 3) } },
+    series: [
+      {
+        name: "λ(T)",
+        type: "line",
+        data: temperatures.map((t, i) => [t, lambda[i]]),
+        showSymbol: false,
+        lineStyle: { color: SPRUCE, width: 2.5 },
+        itemStyle: { color: SPRUCE },
+        markArea: {
+          silent: true,
+          itemStyle: { color: SPRUCE, opacity: 0.14 },
+          label: { show: true, position: "insideBottom", color: SPRUCE, fontSize: 10, formatter: "λ ≥ 1" },
+          data: curve.window.map((w) => [{ xAxis: w.from }, { xAxis: w.to }]),
+        },
+        markLine: {
+          symbol: "none",
+          silent: true,
+          data: [
+            ...edges.map((e) => ({ xAxis: e.temperature, lineStyle: { color: SPRUCE, type: "solid", width: 1 }, label: { formatter: celsius(e.temperature), color: SPRUCE, fontSize: 10 } })),
+            ...(curve.optimum && !curve.optimum.atBoundary
+              ? [{ xAxis: curve.optimum.temperature, lineStyle: { color: INDIGO, type: "dotted", width: 1 }, label: { formatter: `optimum ${celsius(curve.optimum.temperature)}`, color: INDIGO, fontSize: 10, position: "end" } }]
+              : []),
+          ],
+        },
+      },
+      { name: "λ = 1", type: "line", data: [[temperatures[0], 1], [temperatures[temperatures.length - 1], 1]], symbol: "none", lineStyle: { color: INK, type: "dashed", width: 1 }, itemStyle: { color: INK } },
+    ],
+  });
+}
+
+/** Population size under warming: the projection without noise, and the replicates' median with their 5 % and 95 % lines. */
+export function warmingChart(result: WarmingRunResult): string {
+  const times = [...result.years, result.years[result.years.length - 1]! + 1];
+  const q = (p: number) => result.quantiles.find((x) => x.q === p)?.values ?? [];
+  const line = (name: string, values: number[], color: string, type: "solid" | "dashed" | "dotted", width: number) => ({
+    name,
+    type: "line",
+    data: times.map((t, i) => [t, values[i]]),
+    showSymbol: false,
+    lineStyle: { color, type, width },
+    itemStyle: { color },
+  });
+  const first = result.deterministic.firstYearBelowOne;
+  return render(540, 300, {
+    grid: { left: 64, right: 24, top: 36, bottom: 76 },
+    legend: { bottom: 0, textStyle: FONT, data: ["Without year-to-year noise", "Median of the replicates", "5 % and 95 % of the replicates"] },
+    xAxis: { type: "value", name: "year", nameLocation: "middle", nameGap: 26, min: times[0], max: times[times.length - 1], axisLabel: { formatter: (x: number) => String(x) } },
+    yAxis: { type: "value", name: "individuals", min: 0, axisLabel: { formatter: (x: number) => formatNumber(x, 3) } },
+    series: [
+      {
+        ...line("Without year-to-year noise", result.deterministic.total, INK, "solid", 2),
+        markLine:
+          first === null
+            ? undefined
+            : { symbol: "none", silent: true, data: [{ xAxis: first, lineStyle: { color: CLAY, type: "dashed", width: 1 }, label: { formatter: `λ < 1 from ${first}`, color: CLAY, fontSize: 10, position: "insideEndTop" } }] },
+      },
+      line("Median of the replicates", q(0.5), SPRUCE, "solid", 2),
+      line("5 % and 95 % of the replicates", q(0.05), SPRUCE, "dashed", 1),
+      line("5 % and 95 % of the replicates", q(0.95), SPRUCE, "dashed", 1),
     ],
   });
 }

@@ -13,7 +13,21 @@ import SVGtoPDF from "svg-to-pdfkit";
 import { formatLambda, formatNumber, formatPercent } from "../../shared/format/number-format";
 import { censusNote } from "../../shared/format/verdict";
 import type { LifeCycleReport } from "../../shared/report/model";
-import { dateText, describeSource, lambdaIntervalText, leverRows, reviewRows, reviewStatusText, scenarioRows, uncertaintyText } from "../../shared/report/text";
+import {
+  climateFindings,
+  dateText,
+  describeSource,
+  lambdaIntervalText,
+  leverRows,
+  reviewRows,
+  reviewStatusText,
+  scenarioRows,
+  slopeRows,
+  thermalNotes,
+  thermalResponseRows,
+  uncertaintyText,
+  warmingLines,
+} from "../../shared/report/text";
 import type { Paper } from "../../shared/schemas/report";
 import { INK, SPRUCE } from "../../shared/diagram/palette";
 
@@ -71,6 +85,12 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
     if (doc.y > doc.page.height - MARGIN - keep) doc.addPage();
     doc.moveDown(0.8).font("Bold").fontSize(13).fillColor(SPRUCE).text(text, MARGIN, doc.y, { width });
     doc.moveDown(0.3).font("Body").fontSize(9.5).fillColor(INK);
+  };
+  /** A heading inside a section. */
+  const subheading = (text: string, keep = 60) => {
+    if (doc.y > doc.page.height - MARGIN - keep) doc.addPage();
+    doc.moveDown(0.5).font("Bold").fontSize(10.5).fillColor(INK).text(text, MARGIN, doc.y, { width });
+    doc.moveDown(0.2).font("Body").fontSize(9.5).fillColor(INK);
   };
   const para = (text: string, options: { color?: string; size?: number; bold?: boolean } = {}) => {
     doc.font(options.bold ? "Bold" : "Body").fontSize(options.size ?? 9.5).fillColor(options.color ?? INK).text(text, MARGIN, doc.y, { width });
@@ -196,11 +216,30 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
     para("Levers compare modelled changes; whether an action can achieve them is a question for field evidence and the responsible authority.", { color: MUTED, size: 8 });
   }
 
-  heading("Review");
-  para(reviewStatusText(r.review), { bold: r.review.status.state !== "none" });
-  if (r.review.reviews.length > 0) {
-    const t = reviewRows(r.review);
-    table(t.header, t.rows, { fontSize: 8 });
+  if (r.climate) {
+    const c = r.climate;
+    heading("Climate", 200);
+    const [intro, ...findings] = climateFindings(c, a?.lambda ?? null, unit);
+    para(intro!);
+    const t = thermalResponseRows(c);
+    table(t.header, t.rows, { fontSize: 7.5 });
+    for (const note of thermalNotes(c)) para(note, { color: MUTED, size: 7.5 });
+    doc.moveDown(0.3);
+    for (const line of findings) para(line);
+    if (r.figures.climate) figure(r.figures.climate, "λ over temperature; the shaded band is the persistence window (λ ≥ 1), its edges marked in °C; dashed: λ = 1; dotted: the optimum.", 250);
+    const slope = slopeRows(c);
+    if (slope) {
+      doc.moveDown(0.4);
+      para("Where the slope comes from: each responding rate's part (∂λ/∂rate)·(d rate/dT).");
+      table(slope.header, slope.rows, { fontSize: 8 });
+    }
+    if (c.warming) {
+      subheading("Warming trajectory", 160);
+      for (const line of warmingLines(c.warming)) para(line);
+      if (r.figures.warming) figure(r.figures.warming, "Total population under the warming trajectory: without year-to-year noise (ink), and the median (green) with 5 % and 95 % (dashed) of the replicates.", 250);
+    }
+    subheading("Cautions for these Climate results");
+    for (const caution of c.cautions) para(`• ${caution}`, { size: 8.5 });
   }
 
   if (r.risk) {
@@ -219,6 +258,13 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
     for (const line of k.criterionE.lines) para(`• ${line}`, { size: 8.5 });
     para(k.criterionE.caution, { color: MUTED, size: 8 });
     para("The run used the life cycle as it was when the run started.", { color: MUTED, size: 8 });
+  }
+
+  heading("Review");
+  para(reviewStatusText(r.review), { bold: r.review.status.state !== "none" });
+  if (r.review.reviews.length > 0) {
+    const t = reviewRows(r.review);
+    table(t.header, t.rows, { fontSize: 8 });
   }
 
   heading("Cautions");

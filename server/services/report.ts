@@ -5,16 +5,26 @@
  */
 import { and, desc, eq, inArray, isNotNull, sql } from "drizzle-orm";
 import { diagramSvg, type DiagramReadout } from "../../shared/diagram/svg";
+import { describeTrajectory } from "../../shared/climate";
 import { lambdaVerdict } from "../../shared/format/verdict";
 import { compareScenarios, LeverError, leverModel, rankLevers } from "../../shared/levers";
 import type { LifeCycle } from "../../shared/lifecycle";
-import { REPORT_CAUTIONS, type LifeCycleReport, type ReportLevers, type ReportRisk, type ReportSource } from "../../shared/report/model";
+import {
+  REPORT_CAUTIONS,
+  type LifeCycleReport,
+  type ReportLevers,
+  type ReportRisk,
+  type ReportSource,
+  type ReportWarming,
+} from "../../shared/report/model";
+import type { WarmingRunResult, WarmingSettings } from "../../shared/schemas/climate";
 import type { LifeCycleAnalysis } from "../../shared/schemas/life-cycles";
 import type { RiskRunResult } from "../../shared/schemas/runs";
 import type { Db } from "../db/client";
 import { auditEvents, runs, studies, users } from "../db/schema";
 import { HttpError, notFound } from "../http/errors";
 import { elasticityHeatmap, riskChart, scenarioChart, stageVectorsChart } from "../report/charts";
+import { climateSection, type ClimateSection } from "../report/climate-section";
 import { analyzeLifeCycle } from "./analysis";
 import { getLifeCycle } from "./life-cycles";
 import { lifeCycleReviews } from "./reviews";
@@ -56,6 +66,7 @@ export async function buildReport(db: Db, lifeCycleId: string, options: { snapsh
 
   const risk = await latestRisk(db, lifeCycleId);
   const levers = analysis ? leversOf(document) : null;
+  const climate = await climateOf(db, lifeCycleId, document, analysis !== null);
   const names = document.stages.map((s) => s.name);
   const readouts = new Map<string, DiagramReadout>();
   if (analysis) {
@@ -73,6 +84,7 @@ export async function buildReport(db: Db, lifeCycleId: string, options: { snapsh
     verdict: analysis && analysis.lambda !== null ? lambdaVerdict(analysis.lambda, document.timeStepUnit) : null,
     risk: risk?.summary ?? null,
     levers,
+    climate: climate?.summary ?? null,
     review: await lifeCycleReviews(db, lifeCycleId),
     snapshots,
     cautions: REPORT_CAUTIONS,
@@ -82,6 +94,8 @@ export async function buildReport(db: Db, lifeCycleId: string, options: { snapsh
       stageVectors: analysis?.stableStage ? stageVectorsChart(names, analysis.stableStage, analysis.reproductiveValue) : null,
       risk: risk ? riskChart(risk.result) : null,
       scenarios: levers?.comparison ? scenarioChart(levers.comparison) : null,
+      climate: climate?.figures.climate ?? null,
+      warming: climate?.figures.warming ?? null,
     },
   };
 }
@@ -103,6 +117,53 @@ function leversOf(doc: LifeCycle): ReportLevers {
     if (!(err instanceof LeverError)) throw err;
     return { comparison: null, relativeChange: RELATIVE_CHANGE, topLevers: [], problem: err.message };
   }
+}
+
+/** The Climate section with the newest finished warming Run; null when no rate has a thermal response. */
+async function climateOf(db: Db, lifeCycleId: string, doc: LifeCycle, analysable: boolean): Promise<ClimateSection | null> {
+  if (!doc.rates.some((r) => r.thermal)) return null;
+  return climateSection(doc, analysable, await latestWarming(db, lifeCycleId));
+}
+
+async function latestWarming(db: Db, lifeCycleId: string): Promise<{ summary: ReportWarming; result: WarmingRunResult } | null> {
+  const [row] = await db
+    .select({ id: runs.id, finishedAt: runs.finishedAt, settings: runs.settings, result: runs.result })
+    .from(runs)
+    .where(and(eq(runs.lifeCycleId, lifeCycleId), eq(runs.kind, "warming"), eq(runs.status, "succeeded"), isNotNull(runs.result)))
+    .orderBy(desc(runs.finishedAt))
+    .limit(1);
+  if (!row) return null;
+  const r = row.result as WarmingRunResult;
+  const settings = row.settings as Partial<WarmingSettings>;
+  const end = (q: number) => {
+    const values = r.quantiles.find((x) => x.q === q)?.values ?? [];
+    return values[values.length - 1] ?? NaN;
+  };
+  const lastYear = r.years[r.years.length - 1]!;
+  return {
+    result: r,
+    summary: {
+      runId: row.id,
+      finishedAt: row.finishedAt ? row.finishedAt.toISOString() : null,
+      trajectory: describeTrajectory(settings.trajectory),
+      firstYear: r.years[0]!,
+      lastYear,
+      replicates: r.replicates,
+      seed: r.seed,
+      sd: r.sd,
+      initialTotal: typeof settings.initialTotal === "number" ? settings.initialTotal : null,
+      timeStepUnit: r.timeStepUnit,
+      firstYearBelowOne: r.deterministic.firstYearBelowOne,
+      shareEverBelowOne: r.shareEverBelowOne,
+      medianFirstYearBelowOne: r.medianFirstBelowIndex === null ? null : (r.years[r.medianFirstBelowIndex] ?? null),
+      threshold: r.threshold,
+      shareBelowThresholdAtEnd: r.belowThreshold ? (r.belowThreshold[r.belowThreshold.length - 1] ?? null) : null,
+      finalMedian: end(0.5),
+      finalLow: end(0.05),
+      finalHigh: end(0.95),
+      finalDeterministic: r.deterministic.total[r.deterministic.total.length - 1]!,
+    },
+  };
 }
 
 /** People who created, saved, restored or snapshotted the life cycle, most changes first. */

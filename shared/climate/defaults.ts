@@ -14,18 +14,68 @@ export const FORM_LABELS: Record<ThermalForm, string> = {
   briere: "Brière",
 };
 
+/** How a default parameter value is backed: a typical published value, a convention, or only an illustrative start. */
+export type DefaultBasis = "typical" | "convention" | "illustrative";
+
 /** Source notes shown beside the defaults, by parameter key. */
 export const RESPONSE_DEFAULTS = {
-  activationEnergy: { value: 0.65, source: "0.65 eV: typical activation energy of metabolic rates, 0.6–0.7 eV (Gillooly et al. 2001, Science 293:2248; Brown et al. 2004, Ecology 85:1771)." },
-  referenceTemperature: { value: 20, source: "20 °C: a round reference; the rate at the reference is this rate's current value." },
-  inactivationEnergy: { value: 3, source: "3 eV: illustrative start for the high-temperature fall; set it from your species' data." },
-  inactivationTemperature: { value: 30, source: "30 °C: illustrative start; set it from your species' data." },
-  optimum: { value: 22, source: "22 °C: illustrative start; set it from your species' data." },
-  width: { value: 5, source: "5 °C: illustrative start; set it from your species' data." },
-  criticalMaximum: { value: 34, source: "34 °C: illustrative start; set it from your species' data." },
-  lower: { value: 5, source: "5 °C: illustrative start; set it from your species' data." },
-  upper: { value: 35, source: "35 °C: illustrative start; the coefficient a is chosen so the rate at 20 °C equals its current value." },
-} as const;
+  activationEnergy: { value: 0.65, basis: "typical", source: "0.65 eV: typical activation energy of metabolic rates, 0.6–0.7 eV (Gillooly et al. 2001, Science 293:2248; Brown et al. 2004, Ecology 85:1771)." },
+  referenceTemperature: { value: 20, basis: "convention", source: "20 °C: a round reference; the rate at the reference is this rate's current value." },
+  inactivationEnergy: { value: 3, basis: "illustrative", source: "3 eV: illustrative start for the high-temperature fall; set it from your species' data." },
+  inactivationTemperature: { value: 30, basis: "illustrative", source: "30 °C: illustrative start; set it from your species' data." },
+  optimum: { value: 22, basis: "illustrative", source: "22 °C: illustrative start; set it from your species' data." },
+  width: { value: 5, basis: "illustrative", source: "5 °C: illustrative start; set it from your species' data." },
+  criticalMaximum: { value: 34, basis: "illustrative", source: "34 °C: illustrative start; set it from your species' data." },
+  lower: { value: 5, basis: "illustrative", source: "5 °C: illustrative start; set it from your species' data." },
+  upper: { value: 35, basis: "illustrative", source: "35 °C: illustrative start; the coefficient a is chosen so the rate at 20 °C equals its current value." },
+} as const satisfies Record<string, { value: number; basis: DefaultBasis; source: string }>;
+
+/** A parameter of a response form as people read it; `unit` is empty for the rate's own units. */
+export interface ThermalParameter {
+  key: string;
+  label: string;
+  unit: string;
+}
+
+/** Each form's parameters in the order the Climate tab and the report list them. */
+export const THERMAL_PARAMETERS: Record<ThermalForm, ThermalParameter[]> = {
+  arrhenius: [
+    { key: "activationEnergy", label: "Activation energy E", unit: "eV" },
+    { key: "referenceTemperature", label: "Reference temperature", unit: "°C" },
+    { key: "valueAtReference", label: "Value at the reference temperature", unit: "" },
+  ],
+  schoolfield: [
+    { key: "activationEnergy", label: "Activation energy E", unit: "eV" },
+    { key: "referenceTemperature", label: "Reference temperature", unit: "°C" },
+    { key: "valueAtReference", label: "Value at the reference temperature", unit: "" },
+    { key: "inactivationEnergy", label: "High-temperature inactivation energy E_h", unit: "eV" },
+    { key: "inactivationTemperature", label: "Inactivation temperature T_h (half inactive)", unit: "°C" },
+  ],
+  "gaussian-quadratic": [
+    { key: "optimum", label: "Optimum temperature", unit: "°C" },
+    { key: "width", label: "Width σ of the rise", unit: "°C" },
+    { key: "criticalMaximum", label: "Critical thermal maximum", unit: "°C" },
+    { key: "valueAtOptimum", label: "Value at the optimum", unit: "" },
+  ],
+  briere: [
+    { key: "coefficient", label: "Coefficient a", unit: "per °C^2.5" },
+    { key: "lower", label: "Lower temperature limit T₀", unit: "°C" },
+    { key: "upper", label: "Upper temperature limit T_L", unit: "°C" },
+  ],
+};
+
+/** Each form's formula with the papers it comes from. */
+export const FORM_FORMULAS: Record<ThermalForm, string> = {
+  arrhenius: "r(T) = r_ref · exp[−(E/k)(1/T − 1/T_ref)], T in kelvin (Gillooly et al. 2001; Brown et al. 2004)",
+  schoolfield: "r(T) = r_ref · exp[−(E/k)(1/T − 1/T_ref)] / (1 + exp[(E_h/k)(1/T_h − 1/T)]), T in kelvin (Schoolfield, Sharpe & Magnuson 1981)",
+  "gaussian-quadratic": "exp{−[(T − T_opt)/(2σ)]²} below T_opt, 1 − [(T − T_opt)/(T_opt − CT_max)]² above, 0 from CT_max, T in °C (Deutsch et al. 2008)",
+  briere: "r(T) = a · T · (T − T₀) · √(T_L − T) between T₀ and T_L, else 0, T in °C (Brière et al. 1999)",
+};
+
+/** A response's parameter by key (every key of THERMAL_PARAMETERS[form] is a number of the response). */
+export function parameterValue(r: ThermalResponse, key: string): number {
+  return (r as unknown as Record<string, number>)[key]!;
+}
 
 /**
  * A response of `form` for a rate with this value: the rate (or, for a

@@ -31,4 +31,5 @@ export {
   type ReplicateSummary,
 } from "./trajectory";
 export { parseNumericPairs, MAX_CSV_ROWS, type PairsResult, type PairsIssue } from "./csv";
-export { RESPONSE_DEFAULTS, defaultResponse, FORM_LABELS } from "./defaults";
+export { RESPONSE_DEFAULTS, defaultResponse, FORM_LABELS, FORM_FORMULAS, THERMAL_PARAMETERS, parameterValue, type DefaultBasis, type ThermalParameter } from "./defaults";
+export { describeTrajectory } from "./describe";

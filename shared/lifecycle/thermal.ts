@@ -18,6 +18,8 @@ export const MIN_TEMPERATURE = -60;
 export const MAX_TEMPERATURE = 80;
 /** Widest λ(T) range, °C. */
 export const MAX_TEMPERATURE_SPAN = 100;
+/** λ(T) range used when a life cycle saves none (the Climate tab and the report), °C. */
+export const DEFAULT_CLIMATE_RANGE = { min: 0, max: 35 } as const;
 /** Activation and inactivation energies above this (eV) are not physiological. */
 export const MAX_ENERGY = 20;
 /** Years in a warming trajectory. */

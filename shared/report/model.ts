@@ -3,8 +3,10 @@
  * the report page and drawn into the PDF, so the page and the PDF cannot say
  * different things.
  */
+import type { DefaultBasis } from "../climate";
 import type { Verdict } from "../format/verdict";
 import type { LifeCycle } from "../lifecycle";
+import type { ThermalForm } from "../lifecycle/thermal";
 import type { ScenarioComparison } from "../levers";
 import type { LifeCycleAnalysis, SnapshotSummary } from "../schemas/life-cycles";
 import type { ReviewStatus, ReviewView } from "../schemas/review";
@@ -58,6 +60,77 @@ export interface ReportLevers {
   problem: string | null;
 }
 
+/** One vital rate's thermal response as the report lists it. */
+export interface ReportThermalResponse {
+  rateName: string;
+  /** The rate's own notes (what it is), and the source note of its value. */
+  rateNotes: string | null;
+  rateSource: string | null;
+  form: ThermalForm;
+  formLabel: string;
+  formula: string;
+  appliesTo: "rate" | "hazard";
+  /** Parameters in the Climate tab's order; `basis` says when a value is one of the tab's defaults. */
+  parameters: { key: string; label: string; value: number; unit: string; basis: DefaultBasis | null; note: string | null }[];
+  /** The response's own optimum by its form's formula, °C (null for Boltzmann–Arrhenius). */
+  optimum: number | null;
+}
+
+/** The newest finished warming Run of the life cycle, summarised. */
+export interface ReportWarming {
+  runId: string;
+  finishedAt: string | null;
+  /** The trajectory in words. */
+  trajectory: string;
+  firstYear: number;
+  lastYear: number;
+  replicates: number;
+  seed: number;
+  /** Year-to-year SD of the temperatures, °C. */
+  sd: number;
+  initialTotal: number | null;
+  timeStepUnit: string;
+  /** The first year whose λ_t < 1 along the trajectory's mean temperatures (no noise), or null. */
+  firstYearBelowOne: number | null;
+  /** Share of replicates with at least one year of λ_t < 1, and the year by which half of them have one. */
+  shareEverBelowOne: number;
+  medianFirstYearBelowOne: number | null;
+  /** Quasi-extinction: the share of replicates below `threshold` individuals at the end (after `lastYear`), or null without a threshold. */
+  threshold: number | null;
+  shareBelowThresholdAtEnd: number | null;
+  /** Median and 5–95 % of total N at the end, and the projection without noise. */
+  finalMedian: number;
+  finalLow: number;
+  finalHigh: number;
+  finalDeterministic: number;
+}
+
+/** Climate: λ over a temperature range, the persistence window (λ ≥ 1), the slope at the reference temperature, and the warming Run. */
+export interface ReportClimate {
+  /** °C; `saved` is false when the document names no range and the Climate tab's default is used. */
+  range: { min: number; max: number; saved: boolean };
+  responses: ReportThermalResponse[];
+  /** Stretches with λ ≥ 1, °C; an edge is null where the stretch runs on past the end of the range. Empty when λ < 1 throughout. */
+  window: { from: number; to: number; lower: number | null; upper: number | null }[];
+  optimum: { temperature: number; lambda: number; atBoundary: boolean } | null;
+  /** dλ/dT at the reference temperature, split by rate: (∂λ/∂x)(dx/dT). */
+  slope: {
+    temperature: number;
+    /** Why this temperature: the warming trajectory's first year, the responses' common reference temperature, or the middle of the window or range. */
+    basis: "trajectory" | "reference" | "window" | "range";
+    lambda: number;
+    slope: number;
+    contributions: { name: string; value: number; rateSlope: number; sensitivity: number; contribution: number }[];
+  } | null;
+  /** Probabilities pushed past 1 by their response and held at 1, with the °C stretch. */
+  clamped: { name: string; from: number; to: number; worst: number }[];
+  warming: ReportWarming | null;
+  /** Why λ(T) cannot be computed (a formula that fails at some temperature). */
+  problem: string | null;
+  /** Cautions that apply to this life cycle's Climate results. */
+  cautions: string[];
+}
+
 export interface ReportReview {
   status: ReviewStatus;
   /** Every decision and open request, newest first. */
@@ -72,6 +145,10 @@ export interface ReportFigures {
   risk: string | null;
   /** λ of the baseline and each scenario. */
   scenarios: string | null;
+  /** λ(T) with the persistence window shaded. */
+  climate: string | null;
+  /** N(t) of the warming Run: the projection without noise and the replicates' median and 5–95 %. */
+  warming: string | null;
 }
 
 export interface LifeCycleReport {
@@ -88,6 +165,8 @@ export interface LifeCycleReport {
   verdict: Verdict | null;
   risk: ReportRisk | null;
   levers: ReportLevers | null;
+  /** null when no vital rate has a thermal response. */
+  climate: ReportClimate | null;
   review: ReportReview;
   snapshots: SnapshotSummary[];
   cautions: readonly string[];

@@ -2,7 +2,7 @@
 import { formatLambda, formatNumber, formatPercent } from "../format/number-format";
 import type { LifeCycle } from "../lifecycle";
 import type { LifeCycleAnalysis } from "../schemas/life-cycles";
-import type { LifeCycleReport, ReportLevers, ReportReview } from "./model";
+import type { LifeCycleReport, ReportClimate, ReportLevers, ReportReview, ReportWarming } from "./model";
 
 /** "2026-12-02 01:30 UTC" */
 export function dateText(iso: string): string {
@@ -91,4 +91,96 @@ export function reviewRows(review: ReportReview): { header: string[]; rows: stri
     header: ["Reviewer", "Snapshot", "Decision", "Date", "Summary"],
     rows: review.reviews.map((r) => [r.reviewerName, `#${r.snapshotNumber}`, decision[r.state], (r.decidedAt ?? r.createdAt).slice(0, 10), r.summary || r.message || "—"]),
   };
+}
+
+/** °C as the Climate tab writes it: 4 significant digits. */
+export const celsiusText = (t: number): string => `${formatNumber(t, 4)} °C`;
+
+const signedNumber = (x: number, digits = 3) => `${x < 0 ? "−" : x > 0 ? "+" : ""}${formatNumber(Math.abs(x), digits)}`;
+
+/** The persistence window as the Climate tab writes it: "5.637 °C – 16.92 °C", an open end as "below …" / "above …". */
+export function windowText(c: ReportClimate): string {
+  if (c.window.length === 0) return "none in this range";
+  return c.window.map((w) => `${w.lower !== null ? celsiusText(w.lower) : `below ${celsiusText(w.from)}`} – ${w.upper !== null ? celsiusText(w.upper) : `above ${celsiusText(w.to)}`}`).join("; ");
+}
+
+const BASIS_MARK = { typical: "typical value", convention: "round reference", illustrative: "illustrative default" } as const;
+
+/** The thermal responses: rate, form, parameters (defaults marked), the response's own optimum and the rate's source note. */
+export function thermalResponseRows(c: ReportClimate): { header: string[]; rows: string[][] } {
+  return {
+    header: ["Rate", "Response", "Parameters", "Its own optimum", "Source of the rate"],
+    rows: c.responses.map((r) => [
+      r.rateName,
+      `${r.formLabel}${r.appliesTo === "hazard" ? ", on the hazard: survival = exp(−h)" : ""}`,
+      r.parameters.map((p) => `${p.label} = ${formatNumber(p.value, 4)}${p.unit ? ` ${p.unit}` : ""}${p.basis ? ` (${BASIS_MARK[p.basis]})` : ""}`).join("; "),
+      r.optimum === null ? (r.form === "arrhenius" ? "none (keeps rising)" : "—") : celsiusText(r.optimum),
+      r.rateSource ?? "none given",
+    ]),
+  };
+}
+
+/** The formulas used, once per form, and where each default value comes from. */
+export function thermalNotes(c: ReportClimate): string[] {
+  const formulas = [...new Map(c.responses.map((r) => [r.form, `${r.formLabel}: ${r.formula}.`])).values()];
+  const defaults = [...new Set(c.responses.flatMap((r) => r.parameters.flatMap((p) => (p.note ? [`${p.label}: ${p.note}`] : []))))];
+  return [...formulas, ...defaults];
+}
+
+const SLOPE_BASIS = {
+  trajectory: "the first year of the warming trajectory",
+  reference: "the reference temperature of the responses",
+  window: "the middle of the persistence window",
+  range: "the middle of the range",
+} as const;
+
+/** What λ(T) says: the range, the window and its edges, the optimum, the slope at the reference temperature, clamped rates. */
+export function climateFindings(c: ReportClimate, headlineLambda: number | null, timeStepUnit: string): string[] {
+  const lines = [
+    `${c.responses.length} vital rate${c.responses.length === 1 ? "" : "s"} respond${c.responses.length === 1 ? "s" : ""} to temperature (${c.responses.map((r) => r.rateName).join(", ")}). λ(T) is computed from ${celsiusText(c.range.min)} to ${celsiusText(c.range.max)} (${c.range.saved ? "the range saved on the Climate tab" : "the Climate tab's default range"}); the other rates keep their values.`,
+  ];
+  if (c.problem) return [...lines, c.problem];
+  if (c.window.length === 0) lines.push(`Persistence window (λ ≥ 1): none in this range. λ stays below 1 from ${celsiusText(c.range.min)} to ${celsiusText(c.range.max)}.`);
+  else {
+    lines.push(`Persistence window (λ ≥ 1): ${windowText(c)}. Its edges are found by root-finding and hold λ = 1 to within 10⁻⁹.`);
+    if (c.window.some((w) => w.lower === null || w.upper === null)) lines.push("The window runs past the end of the range; widen the range on the Climate tab to find that edge.");
+  }
+  if (c.optimum) lines.push(`Highest λ in the range: ${formatLambda(c.optimum.lambda)} at ${celsiusText(c.optimum.temperature)}${c.optimum.atBoundary ? ", at the end of the range: λ may rise further outside it" : ""}.`);
+  const s = c.slope;
+  if (s) {
+    lines.push(
+      `At ${celsiusText(s.temperature)} (${SLOPE_BASIS[s.basis]}) λ = ${formatLambda(s.lambda)} per ${timeStepUnit} and dλ/dT = ${signedNumber(s.slope)} per °C (${signedNumber((100 * s.slope) / s.lambda, 2)} % of λ per °C).`,
+    );
+    if (headlineLambda !== null && Math.abs(headlineLambda - s.lambda) >= 5e-5) {
+      lines.push(`The headline λ (${formatLambda(headlineLambda)}) uses each rate's own value; λ(T) uses the responses, which at ${celsiusText(s.temperature)} do not give exactly those values.`);
+    }
+  }
+  for (const k of c.clamped) lines.push(`${k.name} is a probability, but its response exceeds 1 from ${celsiusText(k.from)} to ${celsiusText(k.to)} (up to ${formatNumber(k.worst, 3)}); there it is held at 1.`);
+  return lines;
+}
+
+/** dλ/dT split by rate: (∂λ/∂x)(dx/dT). */
+export function slopeRows(c: ReportClimate): { header: string[]; rows: string[][] } | null {
+  if (!c.slope || c.slope.contributions.length === 0) return null;
+  return {
+    header: ["Rate", "Value", "d rate / dT (per °C)", "∂λ/∂rate", "Part of dλ/dT (per °C)"],
+    rows: c.slope.contributions.map((k) => [k.name, formatNumber(k.value, 4), signedNumber(k.rateSlope), formatNumber(k.sensitivity, 3), signedNumber(k.contribution)]),
+  };
+}
+
+/** The warming Run in sentences: what was run, the first year with λ_t < 1, how often and how soon in the replicates, quasi-extinction. */
+export function warmingLines(w: ReportWarming): string[] {
+  const after = w.lastYear + 1;
+  const lines = [
+    `Newest finished warming Run (${w.runId}${w.finishedAt ? `, ${dateText(w.finishedAt)}` : ""}): ${w.replicates.toLocaleString("en")} replicates of ${w.trajectory}; seed ${w.seed}${w.initialTotal !== null ? `; ${formatNumber(w.initialTotal)} individuals at the start, in the stable stage structure of the first year` : ""}.`,
+    w.firstYearBelowOne !== null
+      ? `Without year-to-year noise, λ_t first falls below 1 in ${w.firstYearBelowOne}.`
+      : `Without year-to-year noise, λ_t stays at or above 1 through ${w.lastYear}.`,
+    `With year-to-year noise (SD ${formatNumber(w.sd, 3)} °C), λ_t falls below 1 at least once in ${formatPercent(w.shareEverBelowOne)} of the replicates${w.medianFirstYearBelowOne !== null ? `, by ${w.medianFirstYearBelowOne} in half of them` : ""}.`,
+  ];
+  if (w.threshold !== null && w.shareBelowThresholdAtEnd !== null) {
+    lines.push(`Quasi-extinction: at the start of ${after}, ${formatPercent(w.shareBelowThresholdAtEnd)} of the replicates are below ${formatNumber(w.threshold)} individuals.`);
+  } else lines.push("No quasi-extinction threshold was set for this Run.");
+  lines.push(`Population at the start of ${after}: median ${formatNumber(w.finalMedian, 3)} (5–95 % of the replicates ${formatNumber(w.finalLow, 3)} – ${formatNumber(w.finalHigh, 3)}); ${formatNumber(w.finalDeterministic, 3)} without noise.`);
+  return lines;
 }

@@ -2,10 +2,14 @@ import { unzipSync, strFromU8 } from "fflate";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { eq } from "drizzle-orm";
 import { memberships } from "../../server/db/schema";
+import { defaultResponse } from "../../shared/climate";
 import { formatLambda } from "../../shared/format/number-format";
+import { celsiusText } from "../../shared/report/text";
+import { demoLikeClimateLifeCycle, warmableLifeCycle } from "../factories/climate";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 import { binaryParser, pdfText } from "../helpers/pdf";
 import { signUpAgent, startTestServer, type TestServer } from "../helpers/server";
+import { startWorker } from "../helpers/worker";
 
 let server: TestServer;
 let owner: Awaited<ReturnType<typeof signUpAgent>>;
@@ -146,6 +150,101 @@ describe("report: uncertainty, levers and review", () => {
     expect(text).toContain("Rowan Reviewer");
     expect(text).toContain("Rates match the 2026 survey.");
     await server.db.delete(memberships).where(eq(memberships.userId, reviewer.user.id));
+  });
+});
+
+describe("report: Climate", () => {
+  /** PDF text with line breaks and runs of spaces made single spaces, so a wrapped sentence still matches. */
+  const flat = (text: string) => text.replace(/\s+/g, " ");
+
+  it("gives the thermal responses, the window with the Climate tab's edges, dλ/dT by rate and the warming Run, in the JSON and the PDF", async () => {
+    const doc = demoLikeClimateLifeCycle();
+    const id = (await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { document: doc })).body.id as string;
+    const created = await owner.post(`/api/v1/life-cycles/${id}/runs`, { kind: "warming", settings: { trajectory: doc.climate!.trajectory!, replicates: 200, initialTotal: 400, threshold: 40, seed: 5 } });
+    expect(created.status).toBe(201);
+    const worker = startWorker(server.databaseUrl);
+    let run = created.body;
+    try {
+      const until = Date.now() + 120_000;
+      while (run.status !== "succeeded") {
+        if (run.status === "failed" || Date.now() > until) throw new Error(`warming run ${run.status}: ${run.error}`);
+        await new Promise((r) => setTimeout(r, 200));
+        run = (await owner.get(`/api/v1/runs/${run.id}`)).body;
+      }
+    } finally {
+      await worker.stop();
+    }
+
+    // What the Climate tab asks for: the saved range at 200 points, the slope at the trajectory's first year (11.5 °C).
+    const tab = (await owner.post("/api/v1/climate/lambda", { document: doc, range: doc.climate!.range!, points: 200, at: 11.5 })).body;
+    const res = await owner.get(`/api/v1/life-cycles/${id}/report`);
+    expect(res.status).toBe(200);
+    const c = res.body.climate;
+    expect(c.range).toEqual({ min: 0, max: 25, saved: true });
+    expect(c.responses.map((r: { rateName: string; form: string }) => `${r.rateName}:${r.form}`)).toEqual(["s_j:arrhenius", "s_e:gaussian-quadratic", "m:briere"]);
+    // The typical activation energy is marked with its published source; the demo's own values carry no default mark.
+    const sj = c.responses[0];
+    expect(sj.parameters[0]).toMatchObject({ key: "activationEnergy", value: 0.65, unit: "eV", basis: "typical" });
+    expect(sj.parameters[0].note).toContain("Gillooly et al. 2001");
+    expect(sj.parameters[2]).toMatchObject({ key: "valueAtReference", unit: "per year (hazard)", basis: null });
+    expect(c.responses[2].optimum).toBeCloseTo((4 * 22 + 3 * 4 + Math.sqrt(16 * 22 * 22 + 9 * 4 * 4 - 16 * 4 * 22)) / 10, 12);
+    expect(c.window).toHaveLength(1);
+    expect(c.window[0].lower).toBe(tab.window[0].lower.temperature);
+    expect(c.window[0].upper).toBe(tab.window[0].upper.temperature);
+    expect(c.optimum).toEqual(tab.optimum);
+    expect(c.slope).toMatchObject({ temperature: 11.5, basis: "trajectory", slope: tab.slope.slope, lambda: tab.slope.lambda });
+    expect(c.slope.contributions.map((k: { name: string }) => k.name)).toEqual(["s_j", "s_e", "m"]);
+    const sum = c.slope.contributions.reduce((t: number, k: { contribution: number }) => t + k.contribution, 0);
+    expect(sum).toBeCloseTo(c.slope.slope, 12);
+    const r = run.result;
+    expect(c.warming).toMatchObject({ runId: run.id, replicates: 200, seed: 5, threshold: 40, initialTotal: 400, firstYear: 2026, lastYear: 2125 });
+    expect(c.warming.firstYearBelowOne).toBe(r.deterministic.firstYearBelowOne);
+    expect(c.warming.firstYearBelowOne).not.toBeNull();
+    expect(c.warming.shareBelowThresholdAtEnd).toBe(r.belowThreshold[r.belowThreshold.length - 1]);
+    expect(c.cautions.join(" ")).toContain("extrapolation");
+    expect(c.cautions.join(" ")).not.toContain("Illustrative defaults");
+    expect(res.body.figures.climate).toMatch(/^<svg[\s\S]*λ ≥ 1/);
+    expect(res.body.figures.climate).toContain(celsiusText(c.window[0].lower));
+    expect(res.body.figures.warming).toMatch(/^<svg/);
+
+    const { text } = await pdfText((await getPdf(`/api/v1/life-cycles/${id}/report.pdf`)).body as Buffer);
+    const t = flat(text);
+    expect(text).toMatch(/^Climate$/m);
+    expect(t).toContain(`Persistence window (λ ≥ 1): ${celsiusText(c.window[0].lower)} – ${celsiusText(c.window[0].upper)}.`);
+    expect(t).toContain(`Highest λ in the range: ${formatLambda(c.optimum.lambda)} at ${celsiusText(c.optimum.temperature)}.`);
+    expect(t).toContain("At 11.5 °C (the first year of the warming trajectory)");
+    expect(t).toContain("Boltzmann–Arrhenius, on the hazard");
+    expect(t).toContain(run.id);
+    expect(t).toContain(`λ_t first falls below 1 in ${c.warming.firstYearBelowOne}.`);
+    expect(t).toContain(`are below 40 individuals`);
+    expect(t).toContain("Cautions for these Climate results");
+    expect(t).toContain("are extrapolation");
+  }, 150_000);
+
+  it("uses the Climate tab's default range when none is saved, and names illustrative defaults among the cautions", async () => {
+    const doc = warmableLifeCycle({ s_a: defaultResponse("gaussian-quadratic", { value: 0.85, probability: true }) });
+    const id = (await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { document: doc })).body.id as string;
+    const c = (await owner.get(`/api/v1/life-cycles/${id}/report`)).body.climate;
+    expect(c.range).toEqual({ min: 0, max: 35, saved: false });
+    expect(c.warming).toBeNull();
+    // Without a trajectory and with one Arrhenius reference (20 °C), the slope is reported there.
+    expect(c.slope).toMatchObject({ temperature: 20, basis: "reference" });
+    const sa = c.responses.find((r: { rateName: string }) => r.rateName === "s_a");
+    expect(sa.parameters.filter((p: { basis: string | null }) => p.basis === "illustrative").map((p: { key: string }) => p.key)).toEqual(["optimum", "width", "criticalMaximum"]);
+    const caution = c.cautions.find((x: string) => x.startsWith("Illustrative defaults"));
+    expect(caution).toContain("s_a: Optimum temperature = 22 °C");
+    const { text } = await pdfText((await getPdf(`/api/v1/life-cycles/${id}/report.pdf`)).body as Buffer);
+    expect(flat(text)).toContain("s_a: Optimum temperature = 22 °C");
+    expect(flat(text)).toContain("(the Climate tab's default range)");
+  });
+
+  it("has no Climate section for a life cycle without thermal responses", async () => {
+    const res = await owner.get(`/api/v1/life-cycles/${lifeCycleId}/report`);
+    expect(res.body.climate).toBeNull();
+    expect(res.body.figures.climate).toBeNull();
+    const { text } = await pdfText((await getPdf(`/api/v1/life-cycles/${lifeCycleId}/report.pdf`)).body as Buffer);
+    expect(text).not.toMatch(/^Climate$/m);
+    expect(text).not.toContain("Persistence window");
   });
 });
 

@@ -5,7 +5,7 @@
  */
 import { lazy, Suspense, useState } from "react";
 import type { LifeCycle } from "../../../shared/lifecycle";
-import { MAX_TEMPERATURE, MAX_TEMPERATURE_SPAN, MIN_TEMPERATURE, temperatureRangeProblems, type TemperatureRange } from "../../../shared/lifecycle/thermal";
+import { DEFAULT_CLIMATE_RANGE, MAX_TEMPERATURE, MAX_TEMPERATURE_SPAN, MIN_TEMPERATURE, temperatureRangeProblems, type TemperatureRange } from "../../../shared/lifecycle/thermal";
 import { useClimateLambda } from "../../api/climate";
 import { Alert } from "../../components/ui/alert";
 import { Loading } from "../../components/ui/spinner";
@@ -13,8 +13,6 @@ import { formatLambda, formatNumber } from "../../lib/number-format";
 import { parseNumberInput } from "../../lib/number-input";
 
 const LambdaChart = lazy(() => import("./charts").then((m) => ({ default: m.LambdaChart })));
-
-export const DEFAULT_RANGE: TemperatureRange = { min: 0, max: 35 };
 
 const t = (v: number) => `${formatNumber(v, 4)} °C`;
 
@@ -29,7 +27,7 @@ function readRange(minText: string, maxText: string): { range: TemperatureRange 
 }
 
 export function LambdaSection({ document: doc, readOnly, onRangeChange }: { document: LifeCycle; readOnly: boolean; onRangeChange: (range: TemperatureRange) => void }) {
-  const saved = doc.climate?.range ?? DEFAULT_RANGE;
+  const saved = doc.climate?.range ?? DEFAULT_CLIMATE_RANGE;
   const [minText, setMinText] = useState(String(saved.min));
   const [maxText, setMaxText] = useState(String(saved.max));
   const [atText, setAtText] = useState("");

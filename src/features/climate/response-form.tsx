@@ -6,7 +6,7 @@
  * their field and nothing is saved until they are fixed.
  */
 import { lazy, Suspense, useMemo, useState } from "react";
-import { defaultResponse, FORM_LABELS, RESPONSE_DEFAULTS, responseOptimum, responseValue } from "../../../shared/climate";
+import { defaultResponse, FORM_FORMULAS, FORM_LABELS, RESPONSE_DEFAULTS, responseOptimum, responseValue, THERMAL_PARAMETERS } from "../../../shared/climate";
 import { rateScale, type VitalRate } from "../../../shared/lifecycle";
 import { checkThermalRules, THERMAL_FORMS, ThermalResponseSchema, type ThermalForm, type ThermalResponse } from "../../../shared/lifecycle/thermal";
 import { Alert } from "../../components/ui/alert";
@@ -17,58 +17,19 @@ import { parseNumberInput } from "../../lib/number-input";
 
 const ResponsePreviewChart = lazy(() => import("./charts").then((m) => ({ default: m.ResponsePreviewChart })));
 
-interface ParamSpec {
-  key: string;
-  label: string;
-  unit: string;
-}
-
-export const PARAMS: Record<ThermalForm, ParamSpec[]> = {
-  arrhenius: [
-    { key: "activationEnergy", label: "Activation energy E", unit: "eV" },
-    { key: "referenceTemperature", label: "Reference temperature", unit: "°C" },
-    { key: "valueAtReference", label: "Value at the reference temperature", unit: "" },
-  ],
-  schoolfield: [
-    { key: "activationEnergy", label: "Activation energy E", unit: "eV" },
-    { key: "referenceTemperature", label: "Reference temperature", unit: "°C" },
-    { key: "valueAtReference", label: "Value at the reference temperature", unit: "" },
-    { key: "inactivationEnergy", label: "High-temperature inactivation energy E_h", unit: "eV" },
-    { key: "inactivationTemperature", label: "Inactivation temperature T_h (half inactive)", unit: "°C" },
-  ],
-  "gaussian-quadratic": [
-    { key: "optimum", label: "Optimum temperature", unit: "°C" },
-    { key: "width", label: "Width σ of the rise", unit: "°C" },
-    { key: "criticalMaximum", label: "Critical thermal maximum", unit: "°C" },
-    { key: "valueAtOptimum", label: "Value at the optimum", unit: "" },
-  ],
-  briere: [
-    { key: "coefficient", label: "Coefficient a", unit: "per °C^2.5" },
-    { key: "lower", label: "Lower temperature limit T₀", unit: "°C" },
-    { key: "upper", label: "Upper temperature limit T_L", unit: "°C" },
-  ],
-};
-
-const FORMULAS: Record<ThermalForm, string> = {
-  arrhenius: "r(T) = r_ref · exp[−(E/k)(1/T − 1/T_ref)], T in kelvin (Gillooly et al. 2001; Brown et al. 2004)",
-  schoolfield: "r(T) = r_ref · exp[−(E/k)(1/T − 1/T_ref)] / (1 + exp[(E_h/k)(1/T_h − 1/T)]), T in kelvin (Schoolfield, Sharpe & Magnuson 1981)",
-  "gaussian-quadratic": "exp{−[(T − T_opt)/(2σ)]²} below T_opt, 1 − [(T − T_opt)/(T_opt − CT_max)]² above, 0 from CT_max, T in °C (Deutsch et al. 2008)",
-  briere: "r(T) = a · T · (T − T₀) · √(T_L − T) between T₀ and T_L, else 0, T in °C (Brière et al. 1999)",
-};
-
 type Draft = { form: ThermalForm; appliesTo: "rate" | "hazard"; text: Record<string, string> };
 
 const toDraft = (r: ThermalResponse): Draft => ({
   form: r.form,
   appliesTo: r.appliesTo,
-  text: Object.fromEntries(PARAMS[r.form].map((p) => [p.key, String(Number(((r as unknown as Record<string, number>)[p.key] ?? 0).toPrecision(6)))])),
+  text: Object.fromEntries(THERMAL_PARAMETERS[r.form].map((p) => [p.key, String(Number(((r as unknown as Record<string, number>)[p.key] ?? 0).toPrecision(6)))])),
 });
 
 /** The response a draft describes, or the problems by field. */
 function readDraft(draft: Draft, rate: VitalRate): { response: ThermalResponse | null; errors: Record<string, string> } {
   const errors: Record<string, string> = {};
   const values: Record<string, number | string> = { form: draft.form, appliesTo: draft.appliesTo };
-  for (const p of PARAMS[draft.form]) {
+  for (const p of THERMAL_PARAMETERS[draft.form]) {
     const v = parseNumberInput(draft.text[p.key] ?? "");
     if (v === null) errors[p.key] = "Type a number.";
     else values[p.key] = v;
@@ -137,7 +98,7 @@ export function ResponseForm({ rate, readOnly, onSave, onRemove }: ResponseFormP
                 </option>
               ))}
             </select>
-            <p className="text-sm text-ink/75">{FORMULAS[draft.form]}</p>
+            <p className="text-sm text-ink/75">{FORM_FORMULAS[draft.form]}</p>
           </div>
           <div className="space-y-1">
             <span className="block font-bold">Applies to</span>
@@ -151,7 +112,7 @@ export function ResponseForm({ rate, readOnly, onSave, onRemove }: ResponseFormP
             </label>
             {errors.appliesTo && <p className="text-sm font-bold text-brick">✕ {errors.appliesTo}</p>}
           </div>
-          {PARAMS[draft.form].map((p) => {
+          {THERMAL_PARAMETERS[draft.form].map((p) => {
             const source = (RESPONSE_DEFAULTS as Record<string, { source: string } | undefined>)[p.key]?.source;
             const unit = p.unit || (draft.appliesTo === "hazard" ? "per time step (hazard)" : rate.unit ?? "rate units");
             return (

@@ -6,6 +6,7 @@
  * without noise, and the share of replicates below a threshold.
  */
 import { lazy, Suspense, useState } from "react";
+import { describeTrajectory } from "../../../shared/climate";
 import type { WarmingTrajectory } from "../../../shared/lifecycle/thermal";
 import { MAX_WARMING_REPLICATES } from "../../../shared/schemas/climate";
 import { useStartWarmingRun, type WarmingRun } from "../../api/climate";
@@ -123,11 +124,4 @@ export function WarmingRunSection({ lifeCycleId, trajectory, initialTotal, readO
       </Alert>
     </section>
   );
-}
-
-/** A trajectory in words. */
-export function describeTrajectory(t: WarmingTrajectory | undefined): string {
-  if (!t) return "—";
-  if (t.kind === "trend") return `${t.years} years from ${t.startYear}, baseline ${formatNumber(t.baseline, 4)} °C, ${t.trendPerDecade >= 0 ? "+" : "−"}${formatNumber(Math.abs(t.trendPerDecade), 3)} °C per decade, year-to-year SD ${formatNumber(t.sd, 3)} °C`;
-  return `an uploaded series of ${t.points.length} years (${t.points[0]!.year}–${t.points[t.points.length - 1]!.year}), year-to-year SD ${formatNumber(t.sd ?? 0, 3)} °C`;
 }

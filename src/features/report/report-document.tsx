@@ -7,7 +7,21 @@ import type { ReactNode } from "react";
 import { formatLambda, formatNumber, formatPercent } from "../../../shared/format/number-format";
 import { censusNote } from "../../../shared/format/verdict";
 import type { LifeCycleReport } from "../../../shared/report/model";
-import { dateText, describeSource, lambdaIntervalText, leverRows, reviewRows, reviewStatusText, scenarioRows, uncertaintyText } from "../../../shared/report/text";
+import {
+  climateFindings,
+  dateText,
+  describeSource,
+  lambdaIntervalText,
+  leverRows,
+  reviewRows,
+  reviewStatusText,
+  scenarioRows,
+  slopeRows,
+  thermalNotes,
+  thermalResponseRows,
+  uncertaintyText,
+  warmingLines,
+} from "../../../shared/report/text";
 
 const svgSrc = (svg: string) => `data:image/svg+xml;charset=utf-8,${encodeURIComponent(svg)}`;
 
@@ -74,6 +88,69 @@ function Cautions({ cautions }: { cautions: readonly string[] }) {
     <aside aria-label="Cautions" className="rounded-md border-2 border-ochre bg-ochre/5 px-4 py-2 text-sm">
       {cautions.join(" ")}
     </aside>
+  );
+}
+
+/** Climate: the thermal responses, λ(T) with its persistence window, dλ/dT by rate, the warming Run and the cautions that apply. */
+function ClimateBlock({ report: r }: { report: LifeCycleReport }) {
+  const c = r.climate!;
+  const [intro, ...findings] = climateFindings(c, r.analysis?.lambda ?? null, r.document.timeStepUnit);
+  const slope = slopeRows(c);
+  return (
+    <Block title="Climate" id="report-climate">
+      <p>{intro}</p>
+      <Table caption="Thermal responses of the vital rates" small {...tableOf(thermalResponseRows(c))} />
+      <ul className="space-y-0.5 text-xs text-ink/75">
+        {thermalNotes(c).map((n) => (
+          <li key={n}>{n}</li>
+        ))}
+      </ul>
+      <div data-testid="report-climate-findings" className="space-y-1">
+        {findings.map((line) => (
+          <p key={line}>{line}</p>
+        ))}
+      </div>
+      {r.figures.climate && (
+        <Figure
+          svg={r.figures.climate}
+          alt={`Line chart of λ from ${c.range.min} to ${c.range.max} °C, with the persistence window (λ ≥ 1) shaded and its edges marked.`}
+          caption="λ over temperature; the shaded band is the persistence window (λ ≥ 1), its edges marked in °C; dashed: λ = 1; dotted: the optimum."
+        />
+      )}
+      {slope && (
+        <>
+          <p>Where the slope comes from: each responding rate’s part (∂λ/∂rate)·(d rate/dT).</p>
+          <Table caption="dλ/dT split by rate" small {...tableOf(slope)} />
+        </>
+      )}
+      {c.warming && (
+        <section aria-labelledby="report-warming" className="space-y-2">
+          <h3 id="report-warming" className="font-bold">
+            Warming trajectory
+          </h3>
+          {warmingLines(c.warming).map((line) => (
+            <p key={line}>{line}</p>
+          ))}
+          {r.figures.warming && (
+            <Figure
+              svg={r.figures.warming}
+              alt="Line chart of the total population by year under the warming trajectory: without noise, and the replicates' median with their 5 % and 95 %."
+              caption="Total population under the warming trajectory: without year-to-year noise (ink), and the median (green) with 5 % and 95 % (dashed) of the replicates."
+            />
+          )}
+        </section>
+      )}
+      <section aria-labelledby="report-climate-cautions" className="space-y-1">
+        <h3 id="report-climate-cautions" className="font-bold">
+          Cautions for these Climate results
+        </h3>
+        <ul className="list-disc space-y-1 pl-5 text-sm">
+          {c.cautions.map((line) => (
+            <li key={line}>{line}</li>
+          ))}
+        </ul>
+      </section>
+    </Block>
   );
 }
 
@@ -234,17 +311,13 @@ export function ReportDocument({ report: r }: { report: LifeCycleReport }) {
         </Block>
       )}
 
-      <Block title="Review" id="report-review">
-        <p className={r.review.status.state === "none" ? "" : "font-bold"} data-testid="report-review-status">
-          {reviewStatusText(r.review)}
-        </p>
-        {r.review.reviews.length > 0 && <Table caption="Reviews" small {...tableOf(reviewRows(r.review))} />}
-      </Block>
+      {r.climate && <ClimateBlock report={r} />}
 
       {r.risk && (
         <Block title="Risk" id="report-risk">
           <p>
-            Newest finished Risk run ({r.risk.finishedAt ? dateText(r.risk.finishedAt) : "date unknown"}): {r.risk.replicates.toLocaleString("en")} replicates over {r.risk.horizon} {r.risk.timeStepUnit}s; quasi-extinction means{" "}
+            Newest finished Risk run ({r.risk.runId}
+            {r.risk.finishedAt ? `, ${dateText(r.risk.finishedAt)}` : ""}): {r.risk.replicates.toLocaleString("en")} replicates over {r.risk.horizon} {r.risk.timeStepUnit}s; quasi-extinction means{" "}
             {r.risk.thresholdRule}.
           </p>
           <p>
@@ -262,6 +335,13 @@ export function ReportDocument({ report: r }: { report: LifeCycleReport }) {
           <p className="text-sm text-ink/75">{r.risk.criterionE.caution} The run used the life cycle as it was when the run started.</p>
         </Block>
       )}
+
+      <Block title="Review" id="report-review">
+        <p className={r.review.status.state === "none" ? "" : "font-bold"} data-testid="report-review-status">
+          {reviewStatusText(r.review)}
+        </p>
+        {r.review.reviews.length > 0 && <Table caption="Reviews" small {...tableOf(reviewRows(r.review))} />}
+      </Block>
 
       <Block title="Cautions" id="report-cautions">
         <ul className="list-disc space-y-1 pl-5">
