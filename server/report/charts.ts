@@ -4,7 +4,7 @@
  * registered.
  */
 import { BarChart, HeatmapChart, LineChart } from "echarts/charts";
-import { GridComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, VisualMapComponent } from "echarts/components";
+import { GridComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, MarkPointComponent, VisualMapComponent } from "echarts/components";
 import * as echarts from "echarts/core";
 import { SVGRenderer } from "echarts/renderers";
 import { CLAY, INDIGO, INK, PAPER, SPRUCE } from "../../shared/diagram/palette";
@@ -14,7 +14,7 @@ import type { ScenarioComparison } from "../../shared/levers";
 import type { WarmingRunResult } from "../../shared/schemas/climate";
 import type { RiskRunResult } from "../../shared/schemas/runs";
 
-echarts.use([HeatmapChart, BarChart, LineChart, GridComponent, VisualMapComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, SVGRenderer]);
+echarts.use([HeatmapChart, BarChart, LineChart, GridComponent, VisualMapComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, MarkPointComponent, SVGRenderer]);
 
 const FONT = { fontFamily: "DejaVu Sans, sans-serif", color: INK };
 
@@ -135,11 +135,12 @@ export function climateChart(curve: LambdaCurve, timeStepUnit: string): string {
   const yMin = Math.max(0, Math.floor((lo - pad) / step) * step);
   const yMax = Math.ceil((hi + pad) / step) * step;
   const edges = curve.window.flatMap((w) => [w.lower, w.upper].filter((e) => e !== null));
+  const yMaxWithLabel = yMax + step; // room for the optimum's label above the curve
   return render(540, 300, {
     grid: { left: 60, right: 30, top: 44, bottom: 70 },
     legend: { bottom: 0, textStyle: FONT, data: ["λ(T)", "λ = 1"] },
     xAxis: { type: "value", name: "temperature (°C)", nameLocation: "middle", nameGap: 26, min: temperatures[0], max: temperatures[temperatures.length - 1] },
-    yAxis: { type: "value", name: `λ (per ${timeStepUnit})`, min: Number(yMin.toFixed(2)), max: Number(yMax.toFixed(2)), interval: step, axisLabel: { formatter: (x: number) => formatNumber(x, 3) } },
+    yAxis: { type: "value", name: `λ (per ${timeStepUnit})`, min: Number(yMin.toFixed(2)), max: Number(yMaxWithLabel.toFixed(2)), interval: step, axisLabel: { formatter: (x: number) => formatNumber(x, 3) } },
     series: [
       {
         name: "λ(T)",
@@ -154,16 +155,26 @@ export function climateChart(curve: LambdaCurve, timeStepUnit: string): string {
           label: { show: true, position: "insideBottom", color: SPRUCE, fontSize: 10, formatter: "λ ≥ 1" },
           data: curve.window.map((w) => [{ xAxis: w.from }, { xAxis: w.to }]),
         },
+        // Each edge labelled above the plot, the lower one to the left of its line and the upper one to the right, so a narrow window keeps both readable.
         markLine: {
           symbol: "none",
           silent: true,
-          data: [
-            ...edges.map((e) => ({ xAxis: e.temperature, lineStyle: { color: SPRUCE, type: "solid", width: 1 }, label: { formatter: celsius(e.temperature), color: SPRUCE, fontSize: 10 } })),
-            ...(curve.optimum && !curve.optimum.atBoundary
-              ? [{ xAxis: curve.optimum.temperature, lineStyle: { color: INDIGO, type: "dotted", width: 1 }, label: { formatter: `optimum ${celsius(curve.optimum.temperature)}`, color: INDIGO, fontSize: 10, position: "end" } }]
-              : []),
-          ],
+          data: edges.map((e) => ({
+            xAxis: e.temperature,
+            lineStyle: { color: SPRUCE, type: "solid", width: 1 },
+            label: { formatter: celsius(e.temperature), color: SPRUCE, fontSize: 10, position: "end", align: e.side === "lower" ? "right" : "left" },
+          })),
         },
+        markPoint: curve.optimum
+          ? {
+              silent: true,
+              symbol: "circle",
+              symbolSize: 6,
+              itemStyle: { color: INDIGO },
+              label: { show: true, position: "top", color: INDIGO, fontSize: 10, formatter: `optimum ${celsius(curve.optimum.temperature)}` },
+              data: [{ coord: [curve.optimum.temperature, curve.optimum.lambda] }],
+            }
+          : undefined,
       },
       { name: "λ = 1", type: "line", data: [[temperatures[0], 1], [temperatures[temperatures.length - 1], 1]], symbol: "none", lineStyle: { color: INK, type: "dashed", width: 1 }, itemStyle: { color: INK } },
     ],
@@ -183,22 +194,22 @@ export function warmingChart(result: WarmingRunResult): string {
     itemStyle: { color },
   });
   const first = result.deterministic.firstYearBelowOne;
-  return render(540, 300, {
-    grid: { left: 64, right: 24, top: 36, bottom: 76 },
-    legend: { bottom: 0, textStyle: FONT, data: ["Without year-to-year noise", "Median of the replicates", "5 % and 95 % of the replicates"] },
-    xAxis: { type: "value", name: "year", nameLocation: "middle", nameGap: 26, min: times[0], max: times[times.length - 1], axisLabel: { formatter: (x: number) => String(x) } },
+  return render(560, 320, {
+    grid: { left: 64, right: 30, top: 40, bottom: 80 },
+    legend: { bottom: 0, itemGap: 28, textStyle: FONT, data: ["Without noise", "Median of the replicates", "Their 5 % and 95 %"] },
+    xAxis: { type: "value", name: "year", nameLocation: "middle", nameGap: 26, min: times[0], max: times[times.length - 1], axisLabel: { formatter: (x: number) => String(x), showMinLabel: true, showMaxLabel: false } },
     yAxis: { type: "value", name: "individuals", min: 0, axisLabel: { formatter: (x: number) => formatNumber(x, 3) } },
     series: [
       {
-        ...line("Without year-to-year noise", result.deterministic.total, INK, "solid", 2),
+        ...line("Without noise", result.deterministic.total, INK, "solid", 2),
         markLine:
           first === null
             ? undefined
-            : { symbol: "none", silent: true, data: [{ xAxis: first, lineStyle: { color: CLAY, type: "dashed", width: 1 }, label: { formatter: `λ < 1 from ${first}`, color: CLAY, fontSize: 10, position: "insideEndTop" } }] },
+            : { symbol: "none", silent: true, data: [{ xAxis: first, lineStyle: { color: CLAY, type: "dashed", width: 1 }, label: { formatter: `λ_t < 1 from ${first}`, color: CLAY, fontSize: 10, position: "end" } }] },
       },
       line("Median of the replicates", q(0.5), SPRUCE, "solid", 2),
-      line("5 % and 95 % of the replicates", q(0.05), SPRUCE, "dashed", 1),
-      line("5 % and 95 % of the replicates", q(0.95), SPRUCE, "dashed", 1),
+      line("Their 5 % and 95 %", q(0.05), SPRUCE, "dashed", 1),
+      line("Their 5 % and 95 %", q(0.95), SPRUCE, "dashed", 1),
     ],
   });
 }

@@ -226,7 +226,7 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
     for (const note of thermalNotes(c)) para(note, { color: MUTED, size: 7.5 });
     doc.moveDown(0.3);
     for (const line of findings) para(line);
-    if (r.figures.climate) figure(r.figures.climate, "λ over temperature; the shaded band is the persistence window (λ ≥ 1), its edges marked in °C; dashed: λ = 1; dotted: the optimum.", 250);
+    if (r.figures.climate) figure(r.figures.climate, "λ over temperature; the shaded band is the persistence window (λ ≥ 1), its edges marked in °C; dashed: λ = 1; the dot marks the highest λ.", 250);
     const slope = slopeRows(c);
     if (slope) {
       doc.moveDown(0.4);

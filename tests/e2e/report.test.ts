@@ -1,9 +1,12 @@
 // The report in Debian's Chromium: a member opens a life cycle, reads λ in
 // the editor's header, opens the Report, finds the same λ, the cautions and
 // the figures, switches to a snapshot, and downloads the PDF, whose text
-// holds the λ shown on screen. The API page lists the routes from the
-// OpenAPI document.
+// holds the λ shown on screen. A life cycle with thermal responses gets a
+// Climate section whose persistence window reads as the Climate tab shows
+// it; one without gets none. The API page lists the routes from the OpenAPI
+// document.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { demoLikeClimateLifeCycle } from "../factories/climate";
 import { threeStageLifeCycle } from "../factories/life-cycles";
 import { launchBrowser, watchPageErrors } from "../helpers/browser";
 import { pdfText } from "../helpers/pdf";
@@ -14,6 +17,7 @@ let browser: Awaited<ReturnType<typeof launchBrowser>>;
 let owner: Awaited<ReturnType<typeof signUpAgent>>;
 let lifeCycleId: string;
 let snapshotId: string;
+let climateId: string;
 
 beforeAll(async () => {
   server = await startTestServer();
@@ -22,6 +26,7 @@ beforeAll(async () => {
   const studyId = (await owner.post("/api/v1/studies", { name: "Moorland toads" })).body.id as string;
   lifeCycleId = (await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { document: threeStageLifeCycle({ name: "North pond" }) })).body.id as string;
   snapshotId = (await owner.post(`/api/v1/life-cycles/${lifeCycleId}/snapshots`, { message: "for the review panel" })).body.id as string;
+  climateId = (await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { document: demoLikeClimateLifeCycle("Warm pond") })).body.id as string;
 });
 afterAll(async () => {
   await browser?.close();
@@ -51,6 +56,8 @@ describe("report page", () => {
       expect(await page.getByRole("img", { name: /Life-cycle diagram of North pond/ }).count()).toBe(1);
       expect(await page.getByRole("img", { name: /Heatmap of the elasticities/ }).count()).toBe(1);
       expect(await page.getByTestId("report-source").innerText()).toMatch(/identical to snapshot #1/);
+      // No thermal responses: no Climate section, not even its heading.
+      expect(await page.getByRole("heading", { level: 2, name: "Climate", exact: true }).count()).toBe(0);
 
       // The report of the snapshot.
       await page.getByLabel("State").selectOption(snapshotId);
@@ -70,6 +77,37 @@ describe("report page", () => {
       expect(text).toContain(`λ = ${onScreen}`);
       expect(text).toContain(snapshotId);
       expect(bytes.toString("latin1")).toMatch(/\/MediaBox \[0 0 612 792\]/);
+      expect(errors()).toEqual([]);
+    } finally {
+      await page.close();
+    }
+  });
+
+  it("gives a life cycle with thermal responses a Climate section whose window reads as the Climate tab's", async () => {
+    const page = await browser.context.newPage();
+    const errors = watchPageErrors(page);
+    try {
+      // Signed in already when the first test ran (the browser context keeps its cookies); otherwise sign in here.
+      await page.goto(`${server.url}/life-cycles/${climateId}?tab=climate`);
+      await page.waitForLoadState("networkidle");
+      if (new URL(page.url()).pathname.startsWith("/sign-in")) {
+        await page.getByLabel("E-mail").fill(owner.user.email);
+        await page.getByLabel("Password").fill(owner.user.password);
+        await page.getByRole("button", { name: "Sign in" }).click();
+        await page.waitForURL((url) => !url.pathname.startsWith("/sign-in"));
+      }
+      const tabWindow = page.getByTestId("climate-window");
+      await expect.poll(() => tabWindow.innerText(), { timeout: 20_000 }).toMatch(/°C – .*°C/);
+      const onTab = (await tabWindow.innerText()).trim();
+
+      await page.getByRole("link", { name: "Report" }).click();
+      await page.waitForURL(/\/report$/);
+      const climate = page.getByRole("region", { name: "Climate", exact: true });
+      await expect.poll(() => climate.count(), { timeout: 20_000 }).toBe(1);
+      expect(await page.getByTestId("report-climate-findings").innerText()).toContain(`Persistence window (λ ≥ 1): ${onTab}.`);
+      expect(await climate.getByRole("img", { name: /persistence window \(λ ≥ 1\) shaded/ }).count()).toBe(1);
+      expect(await climate.getByRole("table", { name: "Thermal responses of the vital rates" }).innerText()).toContain("Boltzmann–Arrhenius");
+      expect(await climate.getByRole("region", { name: "Cautions for these Climate results" }).innerText()).toContain("extrapolation");
       expect(errors()).toEqual([]);
     } finally {
       await page.close();

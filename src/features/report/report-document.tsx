@@ -114,7 +114,7 @@ function ClimateBlock({ report: r }: { report: LifeCycleReport }) {
         <Figure
           svg={r.figures.climate}
           alt={`Line chart of λ from ${c.range.min} to ${c.range.max} °C, with the persistence window (λ ≥ 1) shaded and its edges marked.`}
-          caption="λ over temperature; the shaded band is the persistence window (λ ≥ 1), its edges marked in °C; dashed: λ = 1; dotted: the optimum."
+          caption="λ over temperature; the shaded band is the persistence window (λ ≥ 1), its edges marked in °C; dashed: λ = 1; the dot marks the highest λ."
         />
       )}
       {slope && (
