@@ -127,6 +127,7 @@ function assemble(doc: LifeCycle, warming: ReturnType<typeof warmingRun> | null)
       analysis: a,
       analysisProblem: null,
       verdict: lambdaVerdict(a.lambda, doc.timeStepUnit),
+      lambdaRun: null,
       risk: null,
       climate: climate?.summary ?? null,
       levers: {

@@ -262,7 +262,7 @@ export const OPERATIONS: Operation[] = [
     summary: "The report's contents as JSON (what the report page and PDF show)",
     access: "viewer",
     query: named("ReportQuery", ReportQuerySchema),
-    responses: [ok("The report.", { description: "Title, Study, snapshot, authors, stages, rates, matrix, analysis, verdict, Risk summary, cautions and the figures as SVG." })],
+    responses: [ok("The report.", { description: "Title, Study, snapshot, authors, stages, rates, matrix, analysis, verdict, λ's interval from the newest Monte Carlo Run, Levers, Climate (thermal responses, λ(T) window, dλ/dT by rate, the newest warming Run; null without thermal responses), Risk summary, review, cautions and the figures as SVG." })],
   },
   {
     method: "get",

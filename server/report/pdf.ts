@@ -18,6 +18,7 @@ import {
   dateText,
   describeSource,
   lambdaIntervalText,
+  lambdaRunText,
   leverRows,
   reviewRows,
   reviewStatusText,
@@ -134,6 +135,8 @@ function draw(doc: PDFKit.PDFDocument, r: LifeCycleReport): void {
     doc.font("Bold").fontSize(16).fillColor(INK).text(`λ = ${formatLambda(a.lambda)}`, MARGIN, doc.y, { width });
     if (r.verdict) para(`The population is ${r.verdict.headline} once its stage structure has settled.${r.verdict.detail ? ` ${r.verdict.detail}` : ""}`);
     para(lambdaIntervalText(a) ?? "No interval for λ: no vital rate carries an SE, a CI or counts. A Risk run shows the effect of variation over time.", { color: lambdaIntervalText(a) ? INK : MUTED, size: lambdaIntervalText(a) ? 9.5 : 8.5 });
+    const monteCarlo = lambdaRunText(r);
+    if (monteCarlo) para(monteCarlo);
     para(censusNote(r.document.census), { color: MUTED, size: 8.5 });
   } else {
     para(`λ cannot be computed: ${r.analysisProblem ?? a?.nullReasons.lambda ?? "the model is incomplete."}`, { color: "#9f2d2d" });

@@ -12,12 +12,14 @@ import type { LifeCycle } from "../../shared/lifecycle";
 import {
   REPORT_CAUTIONS,
   type LifeCycleReport,
+  type ReportLambdaRun,
   type ReportLevers,
   type ReportRisk,
   type ReportSource,
   type ReportWarming,
 } from "../../shared/report/model";
 import type { WarmingRunResult, WarmingSettings } from "../../shared/schemas/climate";
+import type { UncertaintyRunResult } from "../../shared/schemas/uncertainty";
 import type { LifeCycleAnalysis } from "../../shared/schemas/life-cycles";
 import type { RiskRunResult } from "../../shared/schemas/runs";
 import type { Db } from "../db/client";
@@ -82,6 +84,7 @@ export async function buildReport(db: Db, lifeCycleId: string, options: { snapsh
     analysis,
     analysisProblem,
     verdict: analysis && analysis.lambda !== null ? lambdaVerdict(analysis.lambda, document.timeStepUnit) : null,
+    lambdaRun: await latestMonteCarlo(db, lifeCycleId, source.kind === "current" ? source.version : snapshotVersion(snapshots, source.id)),
     risk: risk?.summary ?? null,
     levers,
     climate: climate?.summary ?? null,
@@ -177,6 +180,35 @@ async function authorsOf(db: Db, lifeCycleId: string): Promise<string[]> {
     .groupBy(users.id, users.name)
     .orderBy(desc(count), users.name);
   return rows.map((r) => r.name);
+}
+
+/** The life-cycle version a snapshot was taken from. */
+function snapshotVersion(snapshots: { id: string; lifeCycleVersion: number }[], id: string): number | null {
+  return snapshots.find((s) => s.id === id)?.lifeCycleVersion ?? null;
+}
+
+/** λ's percentile interval from the newest finished Monte Carlo uncertainty Run. */
+async function latestMonteCarlo(db: Db, lifeCycleId: string, reportedVersion: number | null): Promise<ReportLambdaRun | null> {
+  const [row] = await db
+    .select({ id: runs.id, finishedAt: runs.finishedAt, result: runs.result })
+    .from(runs)
+    .where(and(eq(runs.lifeCycleId, lifeCycleId), eq(runs.kind, "uncertainty"), eq(runs.status, "succeeded"), isNotNull(runs.result)))
+    .orderBy(desc(runs.finishedAt))
+    .limit(1);
+  if (!row) return null;
+  const r = row.result as UncertaintyRunResult;
+  return {
+    runId: row.id,
+    finishedAt: row.finishedAt ? row.finishedAt.toISOString() : null,
+    draws: r.draws,
+    level: r.level,
+    lower: r.lambda.lower,
+    median: r.lambda.median,
+    upper: r.lambda.upper,
+    probabilityBelowOne: r.lambda.probabilityBelowOne,
+    lifeCycleVersion: r.lifeCycleVersion,
+    sameAsReported: reportedVersion !== null && r.lifeCycleVersion === reportedVersion,
+  };
 }
 
 async function latestRisk(db: Db, lifeCycleId: string): Promise<{ summary: ReportRisk; result: RiskRunResult } | null> {

@@ -48,6 +48,22 @@ export interface ReportRisk {
   criterionE: { highestMet: string | null; lines: string[]; caution: string };
 }
 
+/** The newest finished Monte Carlo uncertainty Run: λ's percentile interval from the rates' uncertainty. */
+export interface ReportLambdaRun {
+  runId: string;
+  finishedAt: string | null;
+  draws: number;
+  /** Interval level, e.g. 0.95. */
+  level: number;
+  lower: number;
+  median: number;
+  upper: number;
+  probabilityBelowOne: number;
+  /** The life cycle's version the Run drew from, and whether the reported state is still that version. */
+  lifeCycleVersion: number;
+  sameAsReported: boolean;
+}
+
 /** Levers: the document's scenarios side by side, and the strongest single levers. */
 export interface ReportLevers {
   /** null when the life cycle has no scenarios. */
@@ -163,6 +179,8 @@ export interface LifeCycleReport {
   /** Why there is no analysis (a rate that cannot be computed, no stages). */
   analysisProblem: string | null;
   verdict: Verdict | null;
+  /** λ's interval from the newest finished Monte Carlo Run, when there is one. */
+  lambdaRun: ReportLambdaRun | null;
   risk: ReportRisk | null;
   levers: ReportLevers | null;
   /** null when no vital rate has a thermal response. */

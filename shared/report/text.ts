@@ -43,6 +43,15 @@ export function lambdaIntervalText(analysis: LifeCycleAnalysis | null): string |
   return `${formatNumber(u.level * 100, 3)} % interval ${formatLambda(u.lambda.lower)} – ${formatLambda(u.lambda.upper)} from the rates' uncertainty (delta method); P(λ < 1) = ${chance(u.lambda.probabilityBelowOne)}.`;
 }
 
+/** λ's percentile interval from the newest Monte Carlo Run, or null without one. */
+export function lambdaRunText(r: LifeCycleReport): string | null {
+  const m = r.lambdaRun;
+  if (!m) return null;
+  const when = m.finishedAt ? `, ${dateText(m.finishedAt)}` : "";
+  const state = m.sameAsReported ? "" : ` It drew from version ${m.lifeCycleVersion} of the life cycle, not the state reported here.`;
+  return `Monte Carlo Run (${m.runId}${when}): ${m.draws.toLocaleString("en")} draws from the rates' uncertainty give a ${formatNumber(m.level * 100, 3)} % percentile interval ${formatLambda(m.lower)} – ${formatLambda(m.upper)} (median ${formatLambda(m.median)}); P(λ < 1) = ${chance(m.probabilityBelowOne)}.${state}`;
+}
+
 const signed = (x: number | null, digits = 4) => (x === null ? "—" : `${x >= 0 ? "+" : "−"}${Math.abs(x).toFixed(digits)}`);
 
 /** The scenario table: one row per scenario (the baseline first). */

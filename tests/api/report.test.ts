@@ -135,6 +135,41 @@ describe("report: uncertainty, levers and review", () => {
     expect(text).toContain("Not reviewed yet.");
   });
 
+  it("gives λ's percentile interval from the newest Monte Carlo Run, and says when the Run drew from another version", async () => {
+    const doc = threeStageLifeCycle({ name: "Monte Carlo" });
+    doc.rates = doc.rates.map((r) => (r.name === "s_a" ? { ...r, se: 0.03 } : r.name === "s_j" ? { ...r, se: 0.05 } : r));
+    const lc = (await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { document: doc })).body;
+    const created = await owner.post(`/api/v1/life-cycles/${lc.id}/runs`, { kind: "uncertainty", settings: { draws: 1000, seed: 3 } });
+    expect(created.status).toBe(201);
+    const worker = startWorker(server.databaseUrl);
+    let run = created.body;
+    try {
+      const until = Date.now() + 120_000;
+      while (run.status !== "succeeded") {
+        if (run.status === "failed" || Date.now() > until) throw new Error(`uncertainty run ${run.status}: ${run.error}`);
+        await new Promise((r) => setTimeout(r, 200));
+        run = (await owner.get(`/api/v1/runs/${run.id}`)).body;
+      }
+    } finally {
+      await worker.stop();
+    }
+    const res = await owner.get(`/api/v1/life-cycles/${lc.id}/report`);
+    const l = run.result.lambda;
+    expect(res.body.lambdaRun).toMatchObject({ runId: run.id, draws: 1000, level: 0.95, lower: l.lower, median: l.median, upper: l.upper, probabilityBelowOne: l.probabilityBelowOne, lifeCycleVersion: 1, sameAsReported: true });
+    const { text } = await pdfText((await getPdf(`/api/v1/life-cycles/${lc.id}/report.pdf`)).body as Buffer);
+    const flatText = text.replace(/\s+/g, " ");
+    expect(flatText).toContain(`1,000 draws from the rates' uncertainty give a 95 % percentile interval ${formatLambda(l.lower)} – ${formatLambda(l.upper)}`);
+    expect(flatText).not.toContain("not the state reported here");
+
+    // A later save: the Run's interval stays, marked as drawn from version 1.
+    const saved = await owner.put(`/api/v1/life-cycles/${lc.id}`, { version: lc.version, document: { ...doc, notes: "re-checked" } });
+    expect(saved.status).toBe(200);
+    const later = await owner.get(`/api/v1/life-cycles/${lc.id}/report`);
+    expect(later.body.lambdaRun.sameAsReported).toBe(false);
+    const { text: laterText } = await pdfText((await getPdf(`/api/v1/life-cycles/${lc.id}/report.pdf`)).body as Buffer);
+    expect(laterText.replace(/\s+/g, " ")).toContain("It drew from version 1 of the life cycle, not the state reported here.");
+  }, 150_000);
+
   it("shows the review status with each approval", async () => {
     const reviewer = await signUpAgent(server, { name: "Rowan Reviewer" });
     await server.db.insert(memberships).values({ studyId, userId: reviewer.user.id, role: "reviewer" });

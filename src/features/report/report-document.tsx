@@ -12,6 +12,7 @@ import {
   dateText,
   describeSource,
   lambdaIntervalText,
+  lambdaRunText,
   leverRows,
   reviewRows,
   reviewStatusText,
@@ -193,6 +194,7 @@ export function ReportDocument({ report: r }: { report: LifeCycleReport }) {
             ) : (
               <p className="text-sm text-ink/75">No interval for λ: no vital rate carries an SE, a CI or counts. A Risk run shows the effect of variation over time.</p>
             )}
+            {lambdaRunText(r) && <p data-testid="report-lambda-run">{lambdaRunText(r)}</p>}
             <p className="text-sm text-ink/75">{censusNote(r.document.census)}</p>
           </>
         ) : (
