@@ -151,7 +151,8 @@ export function climateFindings(c: ReportClimate, headlineLambda: number | null,
   if (c.problem) return [...lines, c.problem];
   if (c.window.length === 0) lines.push(`Persistence window (λ ≥ 1): none in this range. λ stays below 1 from ${celsiusText(c.range.min)} to ${celsiusText(c.range.max)}.`);
   else {
-    lines.push(`Persistence window (λ ≥ 1): ${windowText(c)}. Its edges are found by root-finding and hold λ = 1 to within 10⁻⁹.`);
+    const edged = c.window.some((w) => w.lower !== null || w.upper !== null);
+    lines.push(`Persistence window (λ ≥ 1): ${windowText(c)}.${edged ? " Its edges are found by root-finding and hold λ = 1 to within 10⁻⁹." : ""}`);
     if (c.window.some((w) => w.lower === null || w.upper === null)) lines.push("The window runs past the end of the range; widen the range on the Climate tab to find that edge.");
   }
   if (c.optimum) lines.push(`Highest λ in the range: ${formatLambda(c.optimum.lambda)} at ${celsiusText(c.optimum.temperature)}${c.optimum.atBoundary ? ", at the end of the range: λ may rise further outside it" : ""}.`);

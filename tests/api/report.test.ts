@@ -273,6 +273,18 @@ describe("report: Climate", () => {
     expect(flat(text)).toContain("(the Climate tab's default range)");
   });
 
+  it("says when the window runs past both ends of the range, as the Climate tab writes it", async () => {
+    // λ ≥ 1 roughly from 12 to 28 °C (tests/factories/climate.ts): a range of 15–20 °C lies inside the window.
+    const doc = warmableLifeCycle({}, { climate: { range: { min: 15, max: 20 } } });
+    const id = (await owner.post(`/api/v1/studies/${studyId}/life-cycles`, { document: doc })).body.id as string;
+    const c = (await owner.get(`/api/v1/life-cycles/${id}/report`)).body.climate;
+    expect(c.window).toEqual([{ from: 15, to: 20, lower: null, upper: null }]);
+    const { text } = await pdfText((await getPdf(`/api/v1/life-cycles/${id}/report.pdf`)).body as Buffer);
+    const t = flat(text);
+    expect(t).toContain("Persistence window (λ ≥ 1): below 15 °C – above 20 °C. The window runs past the end of the range");
+    expect(t).not.toContain("Its edges are found by root-finding");
+  });
+
   it("has no Climate section for a life cycle without thermal responses", async () => {
     const res = await owner.get(`/api/v1/life-cycles/${lifeCycleId}/report`);
     expect(res.body.climate).toBeNull();
