@@ -4,7 +4,7 @@
  * unless given, and streams the records through csv-parse into the checker
  * of the dataset's kind. Returns the report and, when it is clean, the columns.
  */
-import { parse, type Options } from "csv-parse";
+import { CsvError, parse, type Options } from "csv-parse";
 import { Readable } from "node:stream";
 import {
   CountsChecker,
@@ -46,6 +46,13 @@ export function decodeFile(buffer: Buffer, options: ParseOptions): { file: Decod
   if (head.includes(0)) {
     return { problem: { line: 1, column: null, problem: "This is not a text file (it contains binary data). Save the sheet as CSV (comma- or semicolon-separated text) and upload that." } };
   }
+  // A NUL byte further on: the database cannot store it in a text value, so it is the file's problem, named by line.
+  const nul = buffer.indexOf(0);
+  if (nul >= 0) {
+    let line = 1;
+    for (let k = buffer.indexOf(10); k >= 0 && k < nul; k = buffer.indexOf(10, k + 1)) line++;
+    return { problem: { line, column: null, problem: "This line holds a NUL character (byte 0), which a CSV file cannot contain; save the sheet as CSV again and upload that." } };
+  }
   let text: string;
   try {
     text = new TextDecoder("utf-8", { fatal: true }).decode(buffer);
@@ -74,10 +81,13 @@ async function* records(text: string, delimiter: string): AsyncGenerator<{ value
 
 /** Problems csv-parse itself raises (an unclosed quote, say), as a report line. */
 function parserProblem(err: unknown): RecordProblem | null {
+  // Every error csv-parse raises is the file's problem (INVALID_OPENING_QUOTE, for one, has no CSV_ prefix).
+  if (!(err instanceof CsvError)) return null;
   const e = err as { code?: unknown; message?: unknown; lines?: unknown };
-  if (typeof e?.code !== "string" || !e.code.startsWith("CSV_")) return null;
   const line = typeof e.lines === "number" ? e.lines : 1;
-  const why = e.code === "CSV_QUOTE_NOT_CLOSED" ? "A double quote opened here is never closed." : e.code === "CSV_INVALID_CLOSING_QUOTE" ? "A closing double quote is followed by other characters; quote the whole value." : String(e.message);
+  const why = e.code === "CSV_QUOTE_NOT_CLOSED" ? "A double quote opened here is never closed." : e.code === "CSV_INVALID_CLOSING_QUOTE" ? "A closing double quote is followed by other characters; quote the whole value."
+    : e.code === "INVALID_OPENING_QUOTE" ? "A double quote appears inside a value that does not start with one; quote the whole value and write the quote inside it twice (\"\")."
+    : String(e.message);
   return { line, column: null, problem: why };
 }
 

@@ -27,14 +27,27 @@ function findUnstorable(value: unknown, depth = 0): string[] | null {
   return null;
 }
 
+const MESSAGE = "Text cannot contain the NUL character (U+0000) or a lone UTF-16 surrogate; remove it and try again.";
+
+/** A 400 naming the first field (under `prefix`) whose text the database cannot store, or null when all of it can be stored. */
+export function unstorableTextError(value: unknown, prefix: string[] = []): ReturnType<typeof badRequest> | null {
+  const path = findUnstorable(value);
+  if (!path) return null;
+  const field = [...prefix, ...path].join(".") || "(body)";
+  return badRequest(`${field}: ${MESSAGE}`, [{ path: field, message: MESSAGE }]);
+}
+
+/** Text the database can store: NUL characters and lone surrogates replaced by U+FFFD (for names the person did not type, such as a file's). */
+export const storableVersion = (text: string): string => text.replace(new RegExp(UNSTORABLE.source, "g"), "\uFFFD");
+
 /**
  * Refuses a JSON body holding text the database cannot store, naming the
  * field, for every route at once (otherwise the insert fails with a 500).
+ * Multipart forms are parsed later, by their route: it calls unstorableTextError.
  */
 export const storableText: RequestHandler = (req, _res, next) => {
   const path = findUnstorable(req.body);
   if (!path) return next();
   const field = path.join(".") || "(body)";
-  const message = "Text cannot contain the NUL character (U+0000) or a lone UTF-16 surrogate; remove it and try again.";
-  next(badRequest(`${field}: ${message}`, [{ path: field, message }]));
+  next(badRequest(`${field}: ${MESSAGE}`, [{ path: field, message: MESSAGE }]));
 };

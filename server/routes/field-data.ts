@@ -4,6 +4,7 @@ import { CountsAnalysisQuerySchema, DatasetRenameSchema, FateAnalysisSettingsSch
 import type { AppDeps } from "../app";
 import { currentUser, roleCheck, studyAccess, studyRole, uuidParam } from "../auth/authorize";
 import { HttpError } from "../http/errors";
+import { unstorableTextError } from "../http/storable-text";
 import { createRun, listDatasetRuns } from "../runs/service";
 import {
   checkDatasetFile,
@@ -29,7 +30,8 @@ function oneFile(): RequestHandler {
   const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_UPLOAD_BYTES, files: 1, fields: 10, fieldSize: 200_000 } }).single("file");
   return (req, res, next) => {
     upload(req, res, (err: unknown) => {
-      if (!err) return next();
+      // The form's text fields, parsed only now: the same check as every JSON body's (server/http/storable-text.ts).
+      if (!err) return next(unstorableTextError(req.body) ?? undefined);
       if (err instanceof multer.MulterError) {
         if (err.code === "LIMIT_FILE_SIZE") return next(new HttpError(413, `The file is larger than ${MB} MB, the most one upload may hold. Split it by site or by period.`, "payload_too_large", [{ path: "file", message: `At most ${MB} MB.` }]));
         const field = err.field ?? "file";

@@ -12,7 +12,9 @@ import {
   projectTrajectory,
   responseOptima,
   responseValue,
+  SlopeUndefinedError,
   thermalModel,
+  ThermalValueError,
   trajectoryTemperatures,
   type ThermalModel,
 } from "../../shared/climate";
@@ -39,11 +41,16 @@ export function thermalModelOrBadRequest(doc: LifeCycle, field = "document"): Th
   return thermalModel(doc);
 }
 
-/** Runs `fn`; a formula that fails at some temperature (a negative entry, say) is the request's problem. */
+/** Runs `fn`; a formula that fails at some temperature (a negative entry, say), or a response too large to compute with, is the request's problem. */
 function atTemperatures<T>(doc: LifeCycle, fn: () => T, field = "document"): T {
   try {
     return fn();
   } catch (err) {
+    if (err instanceof ThermalValueError) {
+      const path = `${field}.rates.${doc.rates.findIndex((r) => r.id === err.rateId)}.thermal`;
+      throw badRequest(`${path}: ${err.message}`, [{ path, message: err.message }]);
+    }
+    if (err instanceof SlopeUndefinedError) throw badRequest(`at: ${err.message}`, [{ path: "at", message: err.message }]);
     if (err instanceof LifeCycleFormulaError) {
       const index = new Map(doc.transitions.map((t, i) => [t.id, i]));
       const fields = err.errors.map((e) => ({ path: `${field}.transitions.${index.get(e.transitionId)}.rate`, message: `Under the thermal responses: ${e.message}` }));

@@ -29,6 +29,7 @@ import type { Db, DbOrTx } from "../db/client";
 import { countRows, datasets, fateRows, users } from "../db/schema";
 import { checkUpload, previewFile } from "../field-data/parse-upload";
 import { badRequest, HttpError, notFound } from "../http/errors";
+import { storableVersion, unstorableTextError } from "../http/storable-text";
 import { recordEvent } from "./audit";
 import { insertLifeCycle } from "./life-cycles";
 
@@ -85,11 +86,16 @@ function jsonField(fields: Record<string, unknown>, key: string): unknown {
   const raw = fields[key];
   if (raw === undefined || raw === "") return undefined;
   if (typeof raw !== "string") throw badRequest(`${key}: send it as JSON text.`, [{ path: key, message: "Send it as JSON text." }]);
+  let parsed: unknown;
   try {
-    return JSON.parse(raw) as unknown;
+    parsed = JSON.parse(raw);
   } catch {
     throw badRequest(`${key}: this is not valid JSON.`, [{ path: key, message: "Not valid JSON." }]);
   }
+  // "\u0000" inside the JSON text becomes a NUL only now, after the form's own check.
+  const unstorable = unstorableTextError(parsed, [key]);
+  if (unstorable) throw unstorable;
+  return parsed;
 }
 
 export function previewOptions(fields: Record<string, unknown>): ParseOptions {
@@ -138,7 +144,8 @@ export async function createDataset(db: Db, studyId: string, userId: string, fil
   const checked = await checkUpload(f.buffer, request);
   if (!checked.report.ok || !checked.columns) throw refuse(checked.report);
   const report = checked.report;
-  const fileName = (f.originalname || "upload.csv").slice(0, 255);
+  // The name comes from the sender's disk, not from a form the person filled in: keep it, made storable.
+  const fileName = storableVersion((f.originalname || "upload.csv").slice(0, 255));
 
   return db.transaction(async (tx) => {
     let stages: string[];

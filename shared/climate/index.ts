@@ -8,6 +8,8 @@ export {
   lambdaCurve,
   lambdaSlope,
   responseOptima,
+  ThermalValueError,
+  SlopeUndefinedError,
   EDGE_TOLERANCE,
   MAX_CURVE_POINTS,
   DEFAULT_CURVE_POINTS,

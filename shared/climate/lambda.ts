@@ -61,6 +61,18 @@ export interface ThermalModel {
 }
 
 
+/** A thermal response gives a value λ cannot be computed from (infinite or not a number) at some temperature. */
+export class ThermalValueError extends RangeError {
+  constructor(
+    readonly rateId: string,
+    readonly rateName: string,
+    readonly celsius: number,
+    readonly value: number,
+  ) {
+    super(`At ${Number(celsius.toPrecision(6))} °C the temperature response of ${rateName} gives ${value}, too large to compute λ from: check its parameters.`);
+  }
+}
+
 /** Compiles a life cycle for evaluation at many temperatures. Throws LifeCycleFormulaError for a broken formula. */
 export function thermalModel(doc: LifeCycle): ThermalModel {
   const compiled = compileLifeCycle(doc);
@@ -82,6 +94,7 @@ export function thermalModel(doc: LifeCycle): ThermalModel {
         onClamp?.(s.slot, v);
         v = Math.min(1, Math.max(0, v));
       }
+      if (!Number.isFinite(v)) throw new ThermalValueError(s.rateId, s.name, celsius, v);
       values[s.slot] = v;
     }
     return values;
@@ -310,6 +323,16 @@ export interface LambdaSlope {
   contributions: { rateId: string; name: string; value: number; rateSlope: number; sensitivity: number; contribution: number }[];
 }
 
+/** dλ/dT asked for at a temperature where λ is 0 (or not finite). */
+export class SlopeUndefinedError extends RangeError {
+  constructor(
+    readonly celsius: number,
+    readonly lambda: number,
+  ) {
+    super(`At ${Number(celsius.toPrecision(6))} °C λ is ${lambda}: nothing survives or reproduces there, so dλ/dT has no meaning. Choose a temperature for the slope where λ is above 0.`);
+  }
+}
+
 /**
  * dλ/dT at T by the chain rule: Σ_k (∂λ/∂x_k)(dx_k/dT), with ∂λ/∂x_k from the
  * vital-rate sensitivities (Caswell 2001 §9) and dx_k/dT from the response
@@ -322,6 +345,8 @@ export function lambdaSlope(model: ThermalModel, celsius: number): LambdaSlope {
   const x = Float64Array.from(model.ratesAt(celsius, (slot) => clampedSlots.add(slot)));
   const eig = dominantEigenDense(model.matrixAt(celsius), n, { second: false });
   const { w, v, lambda } = eig;
+  // Sensitivities divide by λ: at a temperature where nothing survives or reproduces, the slope has no meaning.
+  if (!(lambda > 0) || !Number.isFinite(lambda)) throw new SlopeUndefinedError(celsius, lambda);
   let vw = 0;
   for (let i = 0; i < n; i++) vw += v[i]! * w[i]!;
   const S = Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (v[i]! * w[j]!) / vw));

@@ -155,3 +155,170 @@ export function leafSweep(seed: unknown): Json[] {
   }
   return out;
 }
+
+// ------------------------------------------------------------ CSV files and multipart forms
+
+/** Cell values that have broken CSV readers: quotes, delimiters and line ends inside a cell, odd numbers, formulas. */
+const hostileCell: fc.Arbitrary<string> = fc.oneof(
+  { weight: 2, arbitrary: hostileString.map((s) => s.slice(0, 2_000)) },
+  {
+    weight: 5,
+    arbitrary: fc.constantFrom(
+      "",
+      " ",
+      "\"",
+      "\"a\"\"b\"",
+      "\"unclosed",
+      "a,b",
+      "a;b",
+      "a\tb",
+      "a\nb",
+      "\r",
+      "1,5",
+      "1.5",
+      "-3",
+      "0",
+      "1e400",
+      "-1e400",
+      "NaN",
+      "Infinity",
+      "12abc",
+      " 12 ",
+      "١٢٣",
+      "2020-13-45",
+      "2020-02-30",
+      "1999-12-31",
+      "0000",
+      "99999",
+      "2021.5",
+      "=1+1",
+      "@SUM(A1)",
+      "dead",
+      "DEAD",
+      "J",
+      "A",
+      "North",
+    ),
+  },
+  { weight: 1, arbitrary: fc.integer({ min: -1_000_000, max: 10_000_000 }).map(String) },
+  { weight: 1, arbitrary: fc.double({ noNaN: true }).map(String) },
+);
+
+const CSV_OPS = ["cell", "dropLine", "repeatLine", "dropColumn", "addColumn", "swapColumns", "blankLines", "header", "truncate", "appendJunk"] as const;
+type CsvMutation = { op: (typeof CSV_OPS)[number]; a: number; b: number; cell: string; times: number };
+const csvMutationArb: fc.Arbitrary<CsvMutation> = fc.record({ op: fc.constantFrom(...CSV_OPS), a: fc.nat(), b: fc.nat(), cell: hostileCell, times: fc.integer({ min: 2, max: 3_000 }) });
+
+/** How the mutated table is written out: delimiter, line end, byte-order mark, encoding, a trailing line end. */
+const csvLayoutArb = fc.record({
+  delimiter: fc.constantFrom(",", ",", ",", ";", "\t", "|", " "),
+  lineEnd: fc.constantFrom("\n", "\n", "\r\n", "\r"),
+  bom: fc.boolean(),
+  encoding: fc.constantFrom("utf8", "utf8", "utf8", "utf8", "utf16le", "latin1"),
+  trailing: fc.boolean(),
+});
+
+function applyCsvMutation(rows: string[][], m: CsvMutation): string[][] {
+  const out = rows.map((r) => [...r]);
+  const line = out.length ? m.a % out.length : 0;
+  const width = Math.max(1, ...out.map((r) => r.length));
+  const col = m.b % width;
+  switch (m.op) {
+    case "cell":
+      if (out[line]) out[line]![col] = m.cell;
+      break;
+    case "dropLine": out.splice(line, 1); break;
+    case "repeatLine": if (out[line]) out.splice(line, 0, ...Array.from({ length: m.times }, () => [...out[line]!])); break;
+    case "dropColumn": for (const r of out) r.splice(col, 1); break;
+    case "addColumn": out.forEach((r, i) => r.splice(col, 0, i === 0 ? m.cell || "extra" : m.cell)); break;
+    case "swapColumns": for (const r of out) [r[col], r[(col + 1) % width]] = [r[(col + 1) % width] ?? "", r[col] ?? ""]; break;
+    case "blankLines": out.splice(line, 0, [], [""], []); break;
+    case "header": if (out[0]) out[0][col] = m.cell; break;
+    case "truncate": return out.slice(0, line);
+    case "appendJunk": out.push([m.cell.repeat(Math.min(m.times, 50))]); break;
+  }
+  return out;
+}
+
+/**
+ * A valid CSV file with up to four mutations of its table (cells, lines,
+ * columns, header), written out with a random delimiter, line end, byte-order
+ * mark and encoding; sometimes a file that is not a table at all.
+ */
+export function mutatedCsv(seed: string): fc.Arbitrary<Buffer> {
+  const table = seed.split("\n").map((l) => l.split(","));
+  const mutated = fc.tuple(fc.array(csvMutationArb, { minLength: 0, maxLength: 4 }), csvLayoutArb).map(([ms, layout]) => {
+    const rows = ms.reduce(applyCsvMutation, table);
+    const text = (layout.bom ? "\uFEFF" : "") + rows.map((r) => r.join(layout.delimiter)).join(layout.lineEnd) + (layout.trailing ? layout.lineEnd : "");
+    return Buffer.from(text, layout.encoding as BufferEncoding);
+  });
+  const broken = fc.oneof(
+    fc.constant(Buffer.alloc(0)),
+    fc.constant(Buffer.from("\n\n\n")),
+    fc.constant(Buffer.from(seed.split("\n")[0]!)),
+    fc.uint8Array({ maxLength: 2_000 }).map((a) => Buffer.from(a)),
+    fc.constant(Buffer.from("%PDF-1.7\n%âãÏÓ\n1 0 obj\n")),
+    fc.constant(Buffer.from("a".repeat(300_000))),
+    fc.constant(Buffer.from(`${seed}\n"${"x".repeat(50_000)}`)),
+  );
+  return fc.oneof({ weight: 9, arbitrary: mutated }, { weight: 1, arbitrary: broken });
+}
+
+/** One multipart upload: the file (or none) under some field name, and the text fields in order. */
+export interface MultipartForm {
+  file: Buffer | null;
+  fileField: string;
+  fileName: string;
+  /** A second file part (more files than the route takes). */
+  secondFile: boolean;
+  fields: readonly [string, string][];
+}
+
+/** The text fields of an upload as the client sends them: JSON objects as JSON text, strings as they are. */
+export function formFields(value: Json): [string, string][] {
+  if (!value || typeof value !== "object" || Array.isArray(value)) return value === null ? [] : [["value", typeof value === "string" ? value : JSON.stringify(value)]];
+  return Object.entries(value).flatMap(([k, v]): [string, string][] =>
+    // An array of strings at the top becomes the same field repeated, as a browser sends a multi-valued field.
+    Array.isArray(v) && v.length > 0 && v.every((x) => typeof x === "string") ? v.map((x) => [k, x] as [string, string]) : [[k, typeof v === "string" ? v : (JSON.stringify(v) ?? "")]],
+  );
+}
+
+/**
+ * Multipart uploads built from a valid file and valid fields: the CSV mutated
+ * (mutatedCsv), the fields mutated like JSON bodies (mutatedBody) — or both,
+ * or neither — and now and then the form itself broken: no file, another
+ * field name, two files, a JSON field that is not JSON, too many fields.
+ */
+export function mutatedForm(seed: { csv: string; fields: Record<string, unknown> }): fc.Arbitrary<MultipartForm> {
+  const valid = formFields(seed.fields as Json);
+  const fields: fc.Arbitrary<readonly [string, string][]> = fc.oneof(
+    { weight: 5, arbitrary: fc.constant(valid).map((v) => [...v]) },
+    { weight: 3, arbitrary: mutatedBody(seed.fields).map(formFields) },
+    { weight: 1, arbitrary: fc.tuple(fc.constantFrom(...(valid.length ? valid.map(([k]) => k) : ["options"])), fc.constantFrom("{", "{\"a\":", "[1,", "not json", "", "null", "\u0000")).map(([k, v]) => [...valid.filter(([x]) => x !== k), [k, v] as [string, string]]) },
+    { weight: 1, arbitrary: fc.constant([...valid, ...Array.from({ length: 12 }, (_, i) => [`extra${i}`, "x"] as [string, string])]) },
+  );
+  const file = fc.oneof({ weight: 5, arbitrary: fc.constant(Buffer.from(seed.csv)) }, { weight: 15, arbitrary: mutatedCsv(seed.csv) }, { weight: 1, arbitrary: fc.constant(null) });
+  return fc.record({
+    file,
+    fileField: fc.oneof({ weight: 12, arbitrary: fc.constant("file") }, { weight: 1, arbitrary: fc.constantFrom("upload", "file[]", "FILE", "") }),
+    fileName: fc.oneof({ weight: 6, arbitrary: fc.constant("data.csv") }, { weight: 1, arbitrary: hostileString.map((s) => s.slice(0, 300)) }),
+    secondFile: fc.oneof({ weight: 15, arbitrary: fc.constant(false) }, { weight: 1, arbitrary: fc.constant(true) }),
+    fields,
+  });
+}
+
+/** The seed form with each field of it swept like a JSON body's leaves (leafSweep), the file unchanged. */
+export function formLeafSweep(seed: { csv: string; fields: Record<string, unknown> }): MultipartForm[] {
+  return leafSweep(seed.fields).map((f) => ({ file: Buffer.from(seed.csv), fileField: "file", fileName: "data.csv", secondFile: false, fields: formFields(f) }));
+}
+
+/** A query string from a (mutated) object: strings as they are, arrays as repeated keys, anything else as JSON. */
+export function queryString(value: Json): string {
+  if (!value || typeof value !== "object" || Array.isArray(value)) return value === null ? "" : `?q=${encodeURIComponent(typeof value === "string" ? value : JSON.stringify(value))}`;
+  const params = new URLSearchParams();
+  for (const [k, v] of Object.entries(value)) {
+    if (Array.isArray(v)) for (const x of v) params.append(k, typeof x === "string" ? x : JSON.stringify(x));
+    else params.append(k, typeof v === "string" ? v : JSON.stringify(v));
+  }
+  const s = params.toString();
+  return s ? `?${s}` : "";
+}
