@@ -59,6 +59,28 @@ describe("POST /climate/lambda", () => {
     expect(fieldPaths(res)).toContain(path);
   });
 
+  // Found by the fuzzer: both were 500s.
+  it("refuses a response too large to compute λ from, naming the rate's response, and a slope where λ is 0, naming `at`", async () => {
+    const a = await signUpAgent(server);
+    const huge = warmableLifeCycle({ f: { form: "arrhenius", appliesTo: "rate", activationEnergy: 20, referenceTemperature: 20, valueAtReference: 1e308 } });
+    const res = await a.post("/api/v1/climate/lambda", { document: huge, range: { min: 0, max: 40 } });
+    expect(res.status).toBe(400);
+    expect(fieldPaths(res)).toEqual(["document.rates.4.thermal"]);
+    expect(res.body.error.message).toMatch(/temperature response of f gives Infinity/);
+    const trajectory = await a.post("/api/v1/climate/trajectory", { document: huge, trajectory: { kind: "trend", startYear: 2026, years: 20, baseline: 30, trendPerDecade: 2, sd: 0 } });
+    expect(trajectory.status).toBe(400);
+    expect(fieldPaths(trajectory)).toEqual(["document.rates.4.thermal"]);
+
+    // Above 31 °C nothing survives or reproduces: λ = 0, and dλ/dT means nothing there.
+    const gone = { form: "gaussian-quadratic" as const, appliesTo: "rate" as const, valueAtOptimum: 0.8, optimum: 20, width: 5, criticalMaximum: 31 };
+    const barren = warmableLifeCycle({ s_s: gone, s_a: gone });
+    const zero = await a.post("/api/v1/climate/lambda", { document: barren, range: { min: 0, max: 40 }, at: 35 });
+    expect(zero.status).toBe(400);
+    expect(fieldPaths(zero)).toEqual(["at"]);
+    expect(zero.body.error.message).toMatch(/λ is 0/);
+    expect((await a.post("/api/v1/climate/lambda", { document: barren, range: { min: 0, max: 40 }, at: 15 })).status).toBe(200);
+  });
+
   it("refuses a life cycle without stages", async () => {
     const a = await signUpAgent(server);
     const empty = { ...threeStageLifeCycle(), stages: [], transitions: [] };

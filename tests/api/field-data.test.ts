@@ -101,6 +101,10 @@ describe("bad uploads: a report naming line and column, and nothing stored", () 
     { name: "binary file", csv: Buffer.from([0x50, 0x4b, 0x03, 0x04, 0x14, 0x00, 0x06, 0x00, 0x08, 0x00, 0x00, 0x00, 0x21, 0x00]), expect: /not a text file/, line: 1 },
     { name: "header only", csv: "year,count,site\n", expect: /no rows of data/, line: 2 },
     { name: "unclosed quote", csv: `${COUNTS_CSV}\n"2015,160,North`, expect: /never closed/ },
+    // Found by the fuzzer: csv-parse's error for a quote inside an unquoted value has no CSV_ prefix and was a 500.
+    { name: "a quote inside an unquoted value", csv: COUNTS_CSV.replace("2012,118,North", '2012,118,No"rth'), expect: /double quote appears inside a value/, line: 4 },
+    // Found by the fuzzer: a NUL byte past the first 8 kB reached the database.
+    { name: "a NUL byte deep in the file", csv: Buffer.concat([Buffer.from(`${COUNTS_CSV}\n${Array.from({ length: 600 }, (_, k) => `${2015 + k},10,East Fen Meadow Reserve`).join("\n")}\n`), Buffer.from([0]), Buffer.from("\n")]), expect: /NUL character/, line: 611 },
     { name: "individual twice in one year", csv: FATES_CSV.replace("j2,2020", "j1,2020"), fields: fatesFields(), expect: /“j1” appears twice in 2020/, line: 3, column: "id" },
     { name: "fate naming an unknown stage", csv: FATES_CSV.replace("j4,2020,J,J", "j4,2020,J,Subadult"), fields: fatesFields(), expect: /fate “Subadult” is neither a stage/, line: 5, column: "fate" },
     { name: "stage not in the stage list", csv: FATES_CSV.replace("a1,2020,A", "a1,2020,Adult"), fields: fatesFields(), expect: /“Adult” is not one of the stages/, line: 12, column: "stage" },
@@ -154,6 +158,45 @@ describe("bad uploads: a report naming line and column, and nothing stored", () 
     const res = await uploadCsv(owner, `/api/v1/studies/${studyId}/datasets/check`, { content: lines.join("\n") }, { kind: "counts", name: "x", mapping: { time: "year", count: "count" } });
     expect(res.body.problemCount).toBe(300);
     expect(res.body.problems).toHaveLength(200);
+  });
+
+  it("a quote inside an unquoted value is a problem of the file in the preview too, not a 500", async () => {
+    const { owner, studyId } = await setup();
+    const res = await uploadCsv(owner, `/api/v1/studies/${studyId}/datasets/preview`, { content: FATES_CSV.replaceAll(",", "|").replace("j5|2020", 'j5"|2020') }, { options: { delimiter: "|" } });
+    expect(res.status).toBe(400);
+    expect(res.body.error.code).toBe("invalid_file");
+    expect(res.body.error.fields).toEqual([{ path: "file", message: expect.stringMatching(/double quote appears inside a value/) }]);
+  });
+
+  it("text the database cannot store in a form field is a 400 naming it; a file name holding it is kept, made storable", async () => {
+    const { owner, studyId } = await setup();
+    const nulName = await uploadCsv(owner, `/api/v1/studies/${studyId}/datasets`, { content: COUNTS_CSV }, { ...countsFields(), name: "a\u0000b" });
+    expect(nulName.status).toBe(400);
+    expect(nulName.body.error.fields[0].path).toBe("name");
+    // Inside the JSON text the NUL is only an escape; it appears once the field is parsed.
+    const nulColumn = await uploadCsv(owner, `/api/v1/studies/${studyId}/datasets/check`, { content: COUNTS_CSV }, { ...countsFields(), mapping: '{"time":"year\\u0000","count":"count"}' });
+    expect(nulColumn.status).toBe(400);
+    expect(nulColumn.body.error.fields[0].path).toBe("mapping.time");
+    const surrogate = await uploadCsv(owner, `/api/v1/studies/${studyId}/datasets/preview`, { content: COUNTS_CSV }, { options: '{"delimiter":"\\ud800"}' });
+    expect(surrogate.status).toBe(400);
+    expect(surrogate.body.error.fields[0].path).toBe("options.delimiter");
+    expect((await stored(studyId)).datasets).toBe(0);
+    // A raw NUL in a part header is a malformed form; percent-encoded in the RFC 5987 form of the name it reaches the server.
+    const raw = await uploadCsv(owner, `/api/v1/studies/${studyId}/datasets`, { content: COUNTS_CSV, name: "counts\u0000 2024.csv" }, countsFields());
+    expect(raw.status).toBe(400);
+    expect(raw.body.error.fields[0].path).toBe("file");
+    const boundary = "----stagewright-test";
+    const part = (headers: string, body: string) => `--${boundary}\r\n${headers}\r\n\r\n${body}\r\n`;
+    const fields = countsFields();
+    const body =
+      part('Content-Disposition: form-data; name="kind"', fields.kind) +
+      part('Content-Disposition: form-data; name="name"', fields.name) +
+      part('Content-Disposition: form-data; name="mapping"', JSON.stringify(fields.mapping)) +
+      part(`Content-Disposition: form-data; name="file"; filename*=UTF-8''counts%00%20${encodeURIComponent("λ")}.csv\r\nContent-Type: text/csv`, COUNTS_CSV) +
+      `--${boundary}--\r\n`;
+    const named = await owner.agent.post(`/api/v1/studies/${studyId}/datasets`).set("X-CSRF-Token", owner.csrf).set("Content-Type", `multipart/form-data; boundary=${boundary}`).send(body);
+    expect(named.status, JSON.stringify(named.body)).toBe(201);
+    expect(named.body.fileName).toBe("counts\uFFFD λ.csv");
   });
 
   it("names a bad form field", async () => {

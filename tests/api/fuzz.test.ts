@@ -156,7 +156,8 @@ function seedBodies(route: MountedRoute, params: Record<string, string>): unknow
     "POST /life-cycles/:lifeCycleId/reviews/decision": [{ snapshotId, decision: "approved", summary: "Sound." }],
     "PUT /account/notifications": [{ mode: "digest" }],
     "POST /notifications/unsubscribe": [{ token: `${userId}.made-up` }],
-    "POST /levers": [{ document: fullLifeCycle(), relativeChange: 0.1, target: 1, breakEven: true }, { document: fullLifeCycle(), relativeChange: 0.25, target: 1.05, breakEven: false }],
+    // The first seed is the one whose every leaf is swept: without the break-even search, the slowest part.
+    "POST /levers": [{ document: fullLifeCycle(), relativeChange: 0.25, target: 1.05, breakEven: false }, { document: fullLifeCycle(), relativeChange: 0.1, target: 1, breakEven: true }],
     "POST /ltre": [{ reference: fullLifeCycle(), comparison: warmerComparison() }, { reference: threeStageLifeCycle(), comparison: threeStageLifeCycle({ rates: threeStageLifeCycle().rates.map((r) => (r.name === "f" ? { ...r, value: 2.1 } : r)) }) }],
     "POST /analyze": [
       { matrix: [[0, 1.5, 2], [0.6, 0, 0], [0, 0.333, 0]], fertility: [[0, 1.5, 2], [0, 0, 0], [0, 0, 0]], stages: ["a", "b", "c"], initial: [10, 5, 1], projectionSteps: 20 },
