@@ -253,6 +253,37 @@ export function RiskSettingsForm({ lifeCycleId, studyId, document: doc, stableSt
           ))}
       </Group>
 
+      {((doc.scenarios ?? []).length > 0 || values.scenarioId) && (
+        <Group
+          legend="Management scenario"
+          help="Run the life cycle as one of its Levers scenarios changes it (the drawn rates’ means move with the scenario’s changes), or as it is."
+        >
+          <div className="space-y-1">
+            <label htmlFor="risk-scenario" className="block font-bold">
+              Scenario
+            </label>
+            <select
+              id="risk-scenario"
+              className="rounded border border-ink/40 bg-white px-2 py-1"
+              aria-invalid={errorOf(errors, "scenarioId") ? true : undefined}
+              aria-describedby={errorOf(errors, "scenarioId") ? "risk-scenario-error" : undefined}
+              {...register("scenarioId")}
+            >
+              <option value="">None: the life cycle as it is</option>
+              {(doc.scenarios ?? []).map((s) => (
+                <option key={s.id} value={s.id}>
+                  {s.name}
+                </option>
+              ))}
+              {values.scenarioId && !(doc.scenarios ?? []).some((s) => s.id === values.scenarioId) && (
+                <option value={values.scenarioId}>A scenario no longer in this life cycle ({values.scenarioId})</option>
+              )}
+            </select>
+            {errorOf(errors, "scenarioId") && <FieldMessage id="risk-scenario-error" message={errorOf(errors, "scenarioId")!} />}
+          </div>
+        </Group>
+      )}
+
       <Group
         legend="Population at the start"
         help="Type the total: it is spread over the stages by the stable stage distribution and rounded to whole individuals. Change any stage by hand if you know better."

@@ -57,6 +57,8 @@ export interface RiskFormValues {
   reportYears: string;
   seed: string;
   burnIn: string;
+  /** Id of the Levers scenario the Run applies to the life cycle; "" for the life cycle as it is. */
+  scenarioId: string;
 }
 
 /** Everything the translation needs besides the values. */
@@ -131,6 +133,7 @@ export function defaultValues(doc: LifeCycle, stableStage: readonly number[] | n
     reportYears: "",
     seed: "",
     burnIn: "",
+    scenarioId: "",
   };
 }
 
@@ -201,6 +204,8 @@ export function toSettings(values: RiskFormValues, context: FormContext): RiskSe
     ...(reportYears.length > 0 ? { horizons: reportYears } : {}),
     ...optional("seed", values.seed),
     ...optional("burnIn", values.burnIn),
+    // A draft kept from before the field existed has none.
+    ...(values.scenarioId ? { scenarioId: values.scenarioId } : {}),
   };
 }
 
@@ -266,6 +271,7 @@ export function fieldOfSettingsPath(path: string, values: RiskFormValues, contex
     case "replicates":
     case "seed":
     case "burnIn":
+    case "scenarioId":
       return head;
     default:
       return null;
@@ -311,5 +317,7 @@ export function fromSettings(settings: RiskSettings, base: RiskFormValues, doc: 
   out.reportYears = (settings.horizons ?? []).join(", ");
   out.seed = text(settings.seed);
   out.burnIn = text(settings.burnIn);
+  // A Run made for a scenario (from Levers, or from this form) is repeated for the same scenario.
+  out.scenarioId = settings.scenarioId ?? "";
   return out;
 }
