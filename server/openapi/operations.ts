@@ -419,7 +419,7 @@ export const OPERATIONS: Operation[] = [
     method: "post",
     path: "/notifications/unsubscribe",
     tag: "Account",
-    summary: "Stop all e-mail with the token from an e-mail's link (no sign-in)",
+    summary: "Turn notification e-mails off with the token from an e-mail's link (no sign-in); invitations are still sent",
     access: "public",
     body: named("Unsubscribe", UnsubscribeSchema),
     responses: [ok("E-mail stopped.", { description: "What was turned off." })],

@@ -56,12 +56,12 @@ export async function createInvitation(
       .values({ studyId, email: input.email, role: input.role, tokenHash: sha256(token), invitedBy: inviter.id, expiresAt: new Date(Date.now() + INVITATION_DAYS * 86_400_000) })
       .returning();
     await recordEvent(tx, { studyId, actorId: inviter.id, action: "invitation.created", summary: `invited ${input.email} as ${input.role}`, details: { email: input.email, role: input.role } });
-    // Someone with an account gets it as their settings say (the link is a credential, so never in a digest).
+    // An invitation is not a notification: it is always sent at once, whatever the invitee's e-mail setting (the
+    // link is a credential, so never in a digest). Someone with an account still getting notifications is told how to stop them.
     const [user] = await tx.select({ id: users.id }).from(users).where(eq(users.email, input.email));
-    const mode = user ? await notificationMode(tx, user.id) : "immediate";
-    return { invitation: row!, studyName: study.name, recipient: user && mode !== "off" ? user.id : user ? "off" : null };
+    const mode = user ? await notificationMode(tx, user.id) : null;
+    return { invitation: row!, studyName: study.name, recipient: user && mode !== "off" ? user.id : null };
   });
-  if (recipient === "off") return toInvitation({ ...invitation, invitedBy: inviter.name });
   await sendQuietly(deps.mailer, {
     to: input.email,
     subject: `${inviter.name} invited you to the Study “${studyName}” on Stagewright`,
@@ -73,7 +73,7 @@ export async function createInvitation(
       "",
       "If you do not have an account yet, the link lets you create one with this e-mail address.",
       "If you did not expect this message, you can ignore it.",
-      ...(recipient && deps.secret ? ["", "-- ", `Change how Stagewright e-mails you in Settings: ${deps.publicUrl}/settings`, `Stop all Stagewright e-mails (no sign-in needed): ${unsubscribeUrl({ publicUrl: deps.publicUrl, secret: deps.secret }, recipient)}`] : []),
+      ...(recipient && deps.secret ? ["", "-- ", `Change how Stagewright e-mails you in Settings: ${deps.publicUrl}/settings`, `Stop notification e-mails (no sign-in needed): ${unsubscribeUrl({ publicUrl: deps.publicUrl, secret: deps.secret }, recipient)}`] : []),
     ].join("\n"),
   });
   return toInvitation({ ...invitation, invitedBy: inviter.name });

@@ -90,7 +90,7 @@ function footer(deps: NotifyDeps, userId: string, mode: NotificationMode): strin
     "-- ",
     mode === "digest" ? "You get Stagewright's news once a day in a digest." : "You get Stagewright's news by e-mail as it happens.",
     `Change that in Settings: ${deps.publicUrl}/settings`,
-    `Stop all Stagewright e-mails (no sign-in needed): ${unsubscribeUrl(deps, userId)}`,
+    `Stop notification e-mails (no sign-in needed): ${unsubscribeUrl(deps, userId)}`,
   ].join("\n");
 }
 

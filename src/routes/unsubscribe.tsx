@@ -18,20 +18,23 @@ export function UnsubscribePage() {
   const unsubscribe = useUnsubscribe();
   const user = useCurrentUser();
   return (
-    <NarrowCard title="Stop e-mails from Stagewright">
-      <title>Stop e-mails · Stagewright</title>
+    <NarrowCard title="Stop notification e-mails from Stagewright">
+      <title>Stop notification e-mails · Stagewright</title>
       {!token ? (
         <Alert tone="error">This link has no token: it may be cut short. Copy the whole link from the e-mail, or change your e-mail settings in Settings.</Alert>
       ) : unsubscribe.isSuccess ? (
         <Alert tone="success" title="Done">
-          Stagewright will not e-mail {unsubscribe.data.email} any more. You can turn e-mail back on in Settings.
+          Stagewright will send {unsubscribe.data.email} no more notifications. You can turn them back on in Settings.
         </Alert>
       ) : (
         <div className="space-y-4">
-          <p>Stagewright will stop sending you e-mail: no review requests, decisions, mentions, replies, digests or invitations. You can turn it back on in Settings at any time.</p>
+          <p>
+            Stagewright will stop sending you notifications: no review requests, decisions, mentions, replies or digests. You can turn them back on in Settings at any time.
+            Invitations to join a Study and password-reset links you ask for still come, since they are not notifications.
+          </p>
           {unsubscribe.isError && <Alert tone="error">{unsubscribe.error.message}</Alert>}
           <Button onClick={() => unsubscribe.mutate(token)} pending={unsubscribe.isPending}>
-            Stop all e-mails
+            Stop notification e-mails
           </Button>
         </div>
       )}

@@ -267,7 +267,7 @@ describe("e-mail notifications", () => {
     expect((await mailsTo(t.reviewer.user.email)).length).toBe(before);
   });
 
-  it("sends an invitation to an existing account with an unsubscribe link, and none when e-mail is off", async () => {
+  it("sends an invitation to an existing account with an unsubscribe link, and also when e-mail is off (an invitation is not a notification)", async () => {
     const t = await team();
     const invitee = await signUpAgent(server);
     await t.owner.post(`/api/v1/studies/${t.studyId}/invitations`, { email: invitee.user.email, role: "reviewer" });
@@ -282,9 +282,17 @@ describe("e-mail notifications", () => {
     const quiet = await signUpAgent(server);
     expect((await quiet.put("/api/v1/account/notifications", { mode: "off" })).body).toEqual({ mode: "off" });
     expect((await quiet.put("/api/v1/account/notifications", { mode: "weekly" })).body.error.fields[0].path).toBe("mode");
-    await t.owner.post(`/api/v1/studies/${t.studyId}/invitations`, { email: quiet.user.email, role: "viewer" });
-    await new Promise((r) => setTimeout(r, 300));
-    expect(await mailsTo(quiet.user.email)).toEqual([]);
+    const invited = await t.owner.post(`/api/v1/studies/${t.studyId}/invitations`, { email: quiet.user.email, role: "viewer" });
+    expect(invited.status).toBe(201);
+    const quietMail = await server.mailTo(quiet.user.email, 5000, /invited you to the Study/);
+    const quietLink = quietMail.links.find((l) => l.includes("/invitations/"))!;
+    expect((await quiet.get(`/api/v1/invitations/${new URL(quietLink).pathname.split("/").pop()}`)).status).toBe(200);
+    // No link to stop what is already stopped; the setting itself is left as it was.
+    expect(quietMail.links.some((l) => l.includes("/unsubscribe?token="))).toBe(false);
+    expect((await quiet.get("/api/v1/account/notifications")).body).toEqual({ mode: "off" });
+    // Notifications, on the other hand, stay off.
+    await quiet.post(`/api/v1/invitations/${new URL(quietLink).pathname.split("/").pop()}/accept`);
+    expect((await mailsTo(quiet.user.email)).map((m) => m.subject)).toEqual([quietMail.subject]);
   });
 
   it("collects digest notifications into one daily e-mail with every link", async () => {

@@ -7,7 +7,12 @@ import { Loading } from "../../components/ui/spinner";
 const CHOICES: { mode: NotificationMode; label: string; description: string }[] = [
   { mode: "immediate", label: "As it happens", description: "One e-mail for each review request, review decision, @mention, reply to your thread and invitation." },
   { mode: "digest", label: "Daily digest", description: "One e-mail a day (07:00 UTC) listing everything since the last one. Invitations still come at once." },
-  { mode: "off", label: "Off", description: "No e-mail from Stagewright at all, invitations included. You still see everything when you sign in." },
+  {
+    mode: "off",
+    label: "Off",
+    description:
+      "No notifications: no review requests, decisions, mentions, replies or digests. You still see everything when you sign in. E-mails you need in order to act still come: invitations to join a Study and the password-reset links you ask for.",
+  },
 ];
 
 /** How Stagewright e-mails you: immediately, in a daily digest, or not at all. Saved on change. */
