@@ -7,6 +7,7 @@ import path from "node:path";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { apiTokens, signUpRequests, studies, users } from "../../server/db/schema";
+import { hashPassword } from "../../server/auth/secrets";
 import { createApiToken, revokeApiToken } from "../../server/services/api-tokens";
 import { isWrite, mountedRoutes, sessionHeaders } from "../helpers/routes";
 import { browserAgent, signUpAgent, signUpToken, startTestServer, type TestServer } from "../helpers/server";
@@ -70,6 +71,30 @@ describe("cookies", () => {
   });
 });
 
+describe("cookies behind TLS, reached over plain HTTP", () => {
+  it("a server configured for https never sends the session cookie without Secure, even to a request that arrived over plain HTTP", async () => {
+    const tls = await startTestServer({ publicUrl: "https://stagewright.example.org" });
+    try {
+      const a = { user: { email: `plain-${Date.now()}@example.org`, password: "long enough password" } };
+      await tls.db.insert(users).values({ email: a.user.email, name: "Plain", passwordHash: await hashPassword(a.user.password) });
+      // No X-Forwarded-Proto: the request did not come through the TLS proxy.
+      const pre = await fetch(`${tls.url}/api/v1/auth/session`);
+      const csrfCookie = cookieNamed(setCookies(pre), "sw_csrf")!;
+      expect(csrfCookie).toMatch(/;\s*Secure/i);
+      const csrf = decodeURIComponent(csrfCookie.split(";")[0]!.slice("sw_csrf=".length));
+      const res = await fetch(`${tls.url}/api/v1/auth/sign-in`, {
+        method: "POST",
+        headers: { "content-type": "application/json", cookie: csrfCookie.split(";")[0]!, "x-csrf-token": csrf },
+        body: JSON.stringify({ email: a.user.email, password: a.user.password }),
+      });
+      expect(res.status).toBe(200);
+      for (const c of setCookies(res)) expect(c, "every cookie set for a TLS deployment is Secure").toMatch(/;\s*Secure/i);
+    } finally {
+      await tls.close();
+    }
+  });
+});
+
 describe("CSRF", () => {
   it("every write route refuses a cookie-authenticated request without the token, with a wrong one, or with a forged cookie", async () => {
     const owner = await signUpAgent(server);
@@ -85,13 +110,31 @@ describe("CSRF", () => {
       ["a forged cookie and matching header", { cookie: good.cookie.replace(/sw_csrf=[^;]*/, `sw_csrf=${forgedValue}`), "x-csrf-token": forgedValue }],
       ["no cookie at all (login CSRF)", { "x-csrf-token": good["x-csrf-token"]! }],
     ];
+    // What a page on another site can send without a preflight: an HTML form (url-encoded, multipart, text/plain), carrying the session cookie.
+    const simple: [string, () => { body: string | FormData; headers: Record<string, string> }][] = [
+      ["an url-encoded form", () => ({ body: "name=CSRF&kind=counts", headers: { "content-type": "application/x-www-form-urlencoded" } })],
+      ["a multipart form with a file", () => {
+        const form = new FormData();
+        form.append("name", "CSRF");
+        form.append("kind", "counts");
+        form.append("file", new Blob(["year,count\n2020,1\n"], { type: "text/csv" }), "forged.csv");
+        return { body: form, headers: {} };
+      }],
+      ["a text/plain body", () => ({ body: '{"name":"CSRF"}', headers: { "content-type": "text/plain" } })],
+    ];
     const failures: string[] = [];
     const studiesBefore = (await server.db.select().from(studies)).length;
+    const refused = async (route: (typeof writes)[number], label: string, res: Response) => {
+      const body = (await res.json().catch(() => null)) as { error?: { code?: string } } | null;
+      if (res.status !== 403 || body?.error?.code !== "csrf") failures.push(`${route.key} with ${label}: ${res.status} ${JSON.stringify(body)}`);
+    };
     for (const route of writes) {
       for (const [label, headers] of variants) {
-        const res = await fetch(`${server.url}/api/v1${fill(route.path)}`, { method: route.method, headers: { ...headers, "content-type": "application/json" }, body: JSON.stringify({ name: "CSRF" }) });
-        const body = (await res.json().catch(() => null)) as { error?: { code?: string } } | null;
-        if (res.status !== 403 || body?.error?.code !== "csrf") failures.push(`${route.key} with ${label}: ${res.status} ${JSON.stringify(body)}`);
+        await refused(route, label, await fetch(`${server.url}/api/v1${fill(route.path)}`, { method: route.method, headers: { ...headers, "content-type": "application/json" }, body: JSON.stringify({ name: "CSRF" }) }));
+      }
+      for (const [label, make] of simple) {
+        const { body, headers } = make();
+        await refused(route, label, await fetch(`${server.url}/api/v1${fill(route.path)}`, { method: route.method, headers: { cookie: good.cookie, ...headers }, body }));
       }
     }
     expect(failures).toEqual([]);
@@ -245,6 +288,61 @@ describe("no user enumeration", () => {
     expect(resetKnown.body).toEqual(resetUnknown.body);
     await server.mailTo(a.user.email, 5000, /Reset your/);
   });
+});
+
+describe("no user enumeration by timing", () => {
+  /** Median answer time of each of two requests, measured alternately (ABBA), so load on the machine falls on both alike. */
+  async function medians(a: () => Promise<Response>, b: () => Promise<Response>, rounds: number): Promise<[number, number]> {
+    const times: [number[], number[]] = [[], []];
+    const time = async (i: 0 | 1, f: () => Promise<Response>) => {
+      const t0 = performance.now();
+      const res = await f();
+      await res.text();
+      times[i].push(performance.now() - t0);
+      // Let work done after the answer (the reset e-mail) finish before the next request.
+      await new Promise((r) => setTimeout(r, 40));
+    };
+    // One unmeasured pair first: the dummy hash is made on the first unknown sign-in.
+    await (await a()).text();
+    await (await b()).text();
+    for (let k = 0; k < rounds; k++) {
+      if (k % 2 === 0) {
+        await time(0, a);
+        await time(1, b);
+      } else {
+        await time(1, b);
+        await time(0, a);
+      }
+    }
+    const median = (xs: number[]) => [...xs].sort((x, y) => x - y)[Math.floor(xs.length / 2)]!;
+    return [median(times[0]), median(times[1])];
+  }
+  /** Alike within a wide margin: 15 ms, or half the slower of the two, whichever is more. (Skipping the password hash for an unknown address makes sign-in about 100 ms faster, answering a reset only after the e-mail is sent makes it tens of ms slower.) */
+  const alike = ([known, unknown]: [number, number]) => Math.abs(known - unknown) <= Math.max(15, 0.5 * Math.max(known, unknown));
+
+  it("sign-in, password reset and sign-up take about as long for a registered address as for an unknown one", async () => {
+    const open = await startTestServer({ authRateLimit: { windowMs: 60_000, max: 1_000 } });
+    try {
+      const a = await signUpAgent(open);
+      const csrfCookie = cookieNamed(setCookies(await fetch(`${open.url}/api/v1/auth/session`)), "sw_csrf")!.split(";")[0]!;
+      const headers = { "content-type": "application/json", cookie: csrfCookie, "x-csrf-token": decodeURIComponent(csrfCookie.slice("sw_csrf=".length)) };
+      const post = (path: string, body: object) => () => fetch(`${open.url}/api/v1${path}`, { method: "POST", headers, body: JSON.stringify(body) });
+      let n = 0;
+      const unknownEmail = () => `nobody-${Date.now()}-${++n}@example.org`;
+      const signIn = await medians(post("/auth/sign-in", { email: a.user.email, password: "not the password" }), () => post("/auth/sign-in", { email: unknownEmail(), password: "not the password" })(), 10);
+      const reset = await medians(post("/auth/password-reset/request", { email: a.user.email }), () => post("/auth/password-reset/request", { email: unknownEmail() })(), 10);
+      const signUp = await medians(post("/auth/sign-up", { name: "Again", email: a.user.email, password: "long enough password" }), () => post("/auth/sign-up", { name: "New", email: unknownEmail(), password: "long enough password" })(), 8);
+      const report = `medians in ms (registered, unknown): sign-in ${signIn.map((x) => x.toFixed(1))}, reset ${reset.map((x) => x.toFixed(1))}, sign-up ${signUp.map((x) => x.toFixed(1))}`;
+      console.log(report);
+      expect(alike(signIn), report).toBe(true);
+      expect(alike(reset), report).toBe(true);
+      expect(alike(signUp), report).toBe(true);
+      // The sign-in of an unknown address really does the hashing work (so the check above compares like with like).
+      expect(signIn[1]).toBeGreaterThan(20);
+    } finally {
+      await open.close();
+    }
+  }, 120_000);
 });
 
 describe("tokens", () => {
