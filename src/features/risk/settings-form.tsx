@@ -256,7 +256,7 @@ export function RiskSettingsForm({ lifeCycleId, studyId, document: doc, stableSt
       {((doc.scenarios ?? []).length > 0 || values.scenarioId) && (
         <Group
           legend="Management scenario"
-          help="Run the life cycle as one of its Levers scenarios changes it (the drawn rates’ means move with the scenario’s changes), or as it is."
+          help="Run the life cycle as changed by one of its Levers scenarios (the drawn rates’ means move with the scenario’s changes), or as it is."
         >
           <div className="space-y-1">
             <label htmlFor="risk-scenario" className="block font-bold">
