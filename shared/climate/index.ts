@@ -2,7 +2,7 @@
 // rates, λ(T) with its persistence window, fitting, warming trajectories.
 // Pure code, no I/O (METHODS.md §3).
 export { BOLTZMANN_EV, KELVIN_OFFSET, kelvin, responseValue, responseOptimum, responseSlope, q10 } from "./responses";
-export { brentRoot, goldenMaximum, type Root } from "./roots";
+export { brentRoot, goldenMaximum, type BrentOptions, type Root } from "../demography/roots";
 export {
   thermalModel,
   lambdaCurve,

@@ -9,12 +9,10 @@
  * applied to a probability directly is clamped to [0, 1], and each clamp is
  * reported.
  */
-import { dominantEigenDense } from "../demography/eigen";
-import { luFactor, luSolve } from "../demography/lu";
-import { matvec } from "../demography/matrix";
+import { dominantEigenDense, PerronSolver } from "../demography/eigen";
 import { compileLifeCycle, rateScale, type CompiledLifeCycle, type LifeCycle } from "../lifecycle";
 import type { ThermalResponse } from "../lifecycle/thermal";
-import { brentRoot, goldenMaximum } from "./roots";
+import { brentRoot, goldenMaximum } from "../demography/roots";
 import { responseOptimum, responseSlope, responseValue } from "./responses";
 
 /** |λ − 1| at a window edge is at most this. */
@@ -57,7 +55,7 @@ export interface ThermalModel {
   lambdaOf(a: Float64Array): number;
   readonly compiled: CompiledLifeCycle;
   /** The warm-started λ solver behind lambdaAt (its `fallbacks` count is for the benchmark). */
-  readonly perron: PerronWarmStart;
+  readonly perron: PerronSolver;
 }
 
 
@@ -106,7 +104,9 @@ export function thermalModel(doc: LifeCycle): ThermalModel {
     return out;
   };
   const scratch = new Float64Array(n * n);
-  const warm = new PerronWarmStart(n);
+  // λ(T) is asked at nearby temperatures: each call starts from the previous Perron vector.
+  const warm = new PerronSolver(n, { follow: true });
+  const perronRoot = (a: Float64Array) => warm.solve(a)!.lambda;
   return {
     n,
     stageIds: compiled.stageIds,
@@ -115,87 +115,11 @@ export function thermalModel(doc: LifeCycle): ThermalModel {
     ratesAt,
     matrixAt,
     // λ alone (the Perron root, no eigenvectors): the hot path of curves, edges and optima.
-    lambdaAt: (celsius) => (n === 0 ? NaN : warm.perronRoot(matrixAt(celsius, scratch))),
+    lambdaAt: (celsius) => (n === 0 ? NaN : perronRoot(matrixAt(celsius, scratch))),
     compiled,
-    lambdaOf: (a) => (n === 0 ? NaN : warm.perronRoot(a)),
+    lambdaOf: (a) => (n === 0 ? NaN : perronRoot(a)),
     perron: warm,
   };
-}
-
-/** Relative width of the Collatz–Wielandt bracket accepted as λ. */
-const PERRON_TOLERANCE = 1e-13;
-const INVERSE_ITERATIONS = 5;
-/** Above this size a dense LU per step costs more than the Krylov solver. */
-const WARM_LIMIT = 60;
-
-/**
- * λ of a non-negative matrix by shifted inverse iteration warm-started from
- * the previous call (λ(T) is evaluated at nearby temperatures, so the last λ
- * is an excellent shift and the last Perron vector a good start), certified
- * by the Collatz–Wielandt bounds min_i (Ax)_i/x_i ≤ λ ≤ max_i (Ax)_i/x_i,
- * valid for any positive x (Horn & Johnson 2013, Matrix Analysis, §8.1).
- * Without a previous answer, or when the bracket does not close (a zero in
- * the Perron vector, a reducible matrix, a jump in λ), the full solver
- * (dominantEigenDense) answers and seeds the next call.
- */
-export class PerronWarmStart {
-  private x: Float64Array;
-  private lambda = NaN;
-  private readonly shifted: Float64Array;
-  private readonly y: Float64Array;
-  /** How often the full solver answered (for the benchmark). */
-  fallbacks = 0;
-  constructor(private readonly n: number) {
-    this.x = new Float64Array(n);
-    this.shifted = new Float64Array(n * n);
-    this.y = new Float64Array(n);
-  }
-  perronRoot(a: Float64Array): number {
-    const { n } = this;
-    if (n <= WARM_LIMIT && Number.isFinite(this.lambda) && this.lambda > 0) {
-      // Each step re-shifts to the latest estimate (Rayleigh-like), so the error falls very fast.
-      let sigma = this.lambda;
-      let x = this.x;
-      for (let it = 0; it < INVERSE_ITERATIONS; it++) {
-        this.shifted.set(a);
-        for (let i = 0; i < n; i++) this.shifted[i * n + i]! -= sigma * (1 + 1e-10);
-        x = luSolve(luFactor(this.shifted, n, { replaceTinyPivots: true }), x);
-        let sum = 0;
-        for (let i = 0; i < n; i++) sum += x[i]!;
-        if (!(Math.abs(sum) > 0) || !Number.isFinite(sum)) break;
-        for (let i = 0; i < n; i++) x[i] = x[i]! / sum;
-        const bounds = collatzWielandt(a, n, x, this.y);
-        if (bounds === null) break;
-        if (bounds.hi - bounds.lo <= PERRON_TOLERANCE * bounds.hi) {
-          this.x = x;
-          this.lambda = 0.5 * (bounds.lo + bounds.hi);
-          return this.lambda;
-        }
-        sigma = 0.5 * (bounds.lo + bounds.hi);
-      }
-    }
-    this.fallbacks++;
-    const full = dominantEigenDense(Float64Array.from(a), n, { second: false });
-    this.lambda = full.lambda;
-    for (let i = 0; i < n; i++) this.x[i] = Math.max(full.w[i]!, 1e-300);
-    return full.lambda;
-  }
-}
-
-/** min and max of (Ax)_i/x_i, or null unless x and Ax are positive. */
-function collatzWielandt(a: Float64Array, n: number, x: Float64Array, y: Float64Array): { lo: number; hi: number } | null {
-  matvec(a, n, x, y);
-  let lo = Infinity;
-  let hi = 0;
-  for (let i = 0; i < n; i++) {
-    const xi = x[i]!;
-    const yi = y[i]!;
-    if (!(xi > 0) || !(yi > 0)) return null;
-    const r = yi / xi;
-    if (r < lo) lo = r;
-    if (r > hi) hi = r;
-  }
-  return { lo, hi };
 }
 
 export interface WindowEdge {

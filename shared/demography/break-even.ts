@@ -4,6 +4,7 @@
 // recomputed exactly at every point. A rate used in several entries (s·g and
 // s·(1−g)) can move λ non-monotonically, so the whole range is scanned and
 // every crossing is refined and reported, not just the first.
+import { brentRoot, goldenSection } from "./roots";
 
 /** λ at a parameter value; NaN where the model is not defined. */
 export type LambdaAt = (x: number) => number;
@@ -44,8 +45,6 @@ export interface BreakEven {
   readonly undefinedPoints: number;
 }
 
-const GOLDEN = (Math.sqrt(5) - 1) / 2;
-
 /** The points of the scan over [lo, hi], denser near the current value when the range is wide. */
 function scanPoints(opts: BreakEvenOptions, count: number): { points: number[]; lower: number; upper: number } {
   const x0 = opts.value;
@@ -71,89 +70,10 @@ function scanPoints(opts: BreakEvenOptions, count: number): { points: number[]; 
   return { points: [...points].sort((p, q) => p - q), lower, upper };
 }
 
-/** A root of f on [a, b] with f(a), f(b) of opposite signs (Brent's method: bisection with secant and inverse quadratic steps). */
-function brent(f: (x: number) => number, a0: number, b0: number, fa0: number, fb0: number, ftol: number): number {
-  let a = a0;
-  let b = b0;
-  let fa = fa0;
-  let fb = fb0;
-  if (Math.abs(fa) < Math.abs(fb)) {
-    [a, b] = [b, a];
-    [fa, fb] = [fb, fa];
-  }
-  let c = a;
-  let fc = fa;
-  let d = b - a;
-  let bisected = true;
-  for (let it = 0; it < 200; it++) {
-    if (fb === 0 || Math.abs(fb) <= ftol) return b;
-    const xtol = 4 * Number.EPSILON * Math.max(Math.abs(b), 1e-300);
-    if (Math.abs(b - a) <= xtol) return Math.abs(fa) < Math.abs(fb) ? a : b;
-    let s: number;
-    if (fa !== fc && fb !== fc) {
-      s = (a * fb * fc) / ((fa - fb) * (fa - fc)) + (b * fa * fc) / ((fb - fa) * (fb - fc)) + (c * fa * fb) / ((fc - fa) * (fc - fb));
-    } else {
-      s = b - (fb * (b - a)) / (fb - fa);
-    }
-    const lo = (3 * a + b) / 4;
-    const outside = !((s > Math.min(lo, b) && s < Math.max(lo, b)));
-    if (
-      outside ||
-      !Number.isFinite(s) ||
-      (bisected && Math.abs(s - b) >= Math.abs(b - c) / 2) ||
-      (!bisected && Math.abs(s - b) >= Math.abs(c - d) / 2)
-    ) {
-      s = (a + b) / 2;
-      bisected = true;
-    } else bisected = false;
-    const fs = f(s);
-    d = c;
-    c = b;
-    fc = fb;
-    if (Number.isNaN(fs)) {
-      // Undefined inside a bracket: fall back to plain bisection on the defined side.
-      return Math.abs(fa) < Math.abs(fb) ? a : b;
-    }
-    if (fa * fs < 0) {
-      b = s;
-      fb = fs;
-    } else {
-      a = s;
-      fa = fs;
-    }
-    if (Math.abs(fa) < Math.abs(fb)) {
-      [a, b] = [b, a];
-      [fa, fb] = [fb, fa];
-    }
-  }
-  return b;
-}
-
-/** Minimum of |f| on [a, b] by golden-section search (f continuous there). */
-function goldenMinAbs(f: (x: number) => number, a0: number, b0: number, iterations = 60): { x: number; fx: number } {
-  let a = a0;
-  let b = b0;
-  let x1 = b - GOLDEN * (b - a);
-  let x2 = a + GOLDEN * (b - a);
-  let f1 = f(x1);
-  let f2 = f(x2);
-  for (let it = 0; it < iterations; it++) {
-    if (!(Math.abs(f1) > Math.abs(f2))) {
-      b = x2;
-      x2 = x1;
-      f2 = f1;
-      x1 = b - GOLDEN * (b - a);
-      f1 = f(x1);
-    } else {
-      a = x1;
-      x1 = x2;
-      f1 = f2;
-      x2 = a + GOLDEN * (b - a);
-      f2 = f(x2);
-    }
-    if (Math.sign(f1) !== Math.sign(f2) && !Number.isNaN(f1) && !Number.isNaN(f2)) break;
-  }
-  return Math.abs(f1) < Math.abs(f2) ? { x: x1, fx: f1 } : { x: x2, fx: f2 };
+/** The point of [a, b] where |f| is smallest (golden-section search, f continuous there), stopping early at a sign change. */
+function goldenMinAbs(f: (x: number) => number, a: number, b: number): { x: number; fx: number } {
+  const signChange = (f1: number, f2: number) => Math.sign(f1) !== Math.sign(f2) && !Number.isNaN(f1) && !Number.isNaN(f2);
+  return goldenSection(f, a, b, { xtol: 0, maxIterations: 60, score: (v) => -Math.abs(v), stop: signChange });
 }
 
 /**
@@ -184,6 +104,9 @@ export function breakEvenValues(lambdaAt: LambdaAt, options: BreakEvenOptions): 
     if (lambdaMax === null || lambda > lambdaMax.lambda) lambdaMax = { value: x, lambda };
   });
 
+  // Brent's method on a sign change whose end values are known; where λ is undefined inside, the best point so far.
+  const refine = (a: number, b: number, fa: number, fb: number) => brentRoot(g, a, b, { fa, fb, ftol, xtol: 0, notFinite: "stop" }).x;
+
   const add = (x: number) => {
     const fx = g(x);
     const h = Math.max(Math.abs(x), 1) * 1e-7;
@@ -206,7 +129,7 @@ export function breakEvenValues(lambdaAt: LambdaAt, options: BreakEvenOptions): 
     const vn = gs[k + 1] as number;
     if (Number.isNaN(vn) || Math.abs(vn) <= ftol) continue;
     if (v * vn < 0) {
-      add(brent(g, x, xn, v, vn, ftol));
+      add(refine(x, xn, v, vn));
       continue;
     }
     // Same sign at both ends: look for a dip towards the target inside the
@@ -220,8 +143,8 @@ export function breakEvenValues(lambdaAt: LambdaAt, options: BreakEvenOptions): 
         if (Math.abs(m.fx) <= ftol) add(m.x);
         else if (m.fx * v < 0) {
           // Two crossings: one on each side of the point found.
-          add(brent(g, xp, m.x, vp, m.fx, ftol));
-          add(brent(g, m.x, xn, m.fx, vn, ftol));
+          add(refine(xp, m.x, vp, m.fx));
+          add(refine(m.x, xn, m.fx, vn));
         }
       }
     }

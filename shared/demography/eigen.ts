@@ -27,7 +27,7 @@
 import { EPS, matvec, normFrobenius, pseudoRandom, toArray, toDense, vecmat } from "./matrix";
 import { combineRows, restartedArnoldi, ritzVector, type KrylovResult } from "./krylov";
 import { hessenbergLeftEigenvector } from "./hessenberg";
-import { luFactor, luSolve, luSolveTransposed } from "./lu";
+import { luFactor, luFactorInPlace, luSolve, luSolveInPlace, luSolveTransposed, luSolveTransposedInPlace, type LuFactors } from "./lu";
 import { graphStructure, type GraphStructure } from "./graph";
 import { balance } from "./balance";
 
@@ -352,63 +352,246 @@ export function spectralRadiusDense(a: Float64Array, n: number, structure?: Grap
   return { value: full.lambda, converged: full.converged };
 }
 
+/** Relative residual ‖Ax − λx‖₁/(λ‖x‖₁) the warm-started solver aims for by default. */
+const WARM_TOLERANCE = 1e-13;
+/** Factorisations of A − σI the warm-started solver may make in one call. */
+const WARM_FACTORISATIONS = 4;
+/** Solves with one factorisation before the shift is renewed (sooner when a solve does not halve the residual). */
+const WARM_SOLVES = 8;
+
+export interface PerronSolverOptions {
+  /** Also compute the left vector v (reproductive values); default false: λ and w only. */
+  readonly left?: boolean;
+  /** Relative residual ‖Ax − λx‖₁/(λ‖x‖₁) accepted (default 1e-13); with `left`, for v as well. */
+  readonly tolerance?: number;
+  /** When the warm iteration cannot verify its answer: true (default) asks dominantEigenDense, false returns null. */
+  readonly fallback?: boolean;
+  /** Without a start vector, start from the previous call's answer (a sequence of nearby matrices, such as λ over temperatures). */
+  readonly follow?: boolean;
+}
+
+/** λ and the Perron vectors found by a PerronSolver; the vectors are the solver's own and are overwritten by its next call. */
+export interface PerronPair {
+  /** Dominant eigenvalue λ (per projection interval). */
+  readonly lambda: number;
+  /** Right vector, Σw = 1. */
+  readonly w: Float64Array;
+  /** Left vector with v[vScaleIndex] = 1 (v₁ = 1 when positive), or null without the `left` option. */
+  readonly v: Float64Array | null;
+  readonly converged: boolean;
+  /** True when the warm iteration answered, false when dominantEigenDense did. */
+  readonly warm: boolean;
+}
+
+/** A positive start near the Perron vector: the matrix's own, or that of a nearby matrix. */
+export interface PerronStart {
+  readonly w: ArrayLike<number>;
+  /** Used with the `left` option; a vector of ones when absent. */
+  readonly v?: ArrayLike<number> | null;
+}
+
 /**
- * λ (per projection interval) and w (Σw = 1) of a non-negative matrix, started
- * from a positive vector near its Perron vector — the matrix of a small change
- * to a model whose w is known (levers, break-even scans, LTRE). Shifted inverse
- * iteration from a Collatz–Wielandt upper bound σ ≥ λ (the same fallback
- * dominantEigenDense uses): every other eigenvalue μ has |μ| ≤ λ, so λ is the
- * eigenvalue nearest σ. The answer is accepted only with a small residual and
- * a one-signed w; otherwise the full dominantEigenDense decides.
+ * λ, w (and v) of non-negative n×n row-major matrices close to one whose
+ * vectors are known — a changed lever, a break-even scan, a Monte Carlo draw,
+ * λ at the next temperature — by shifted inverse iteration started from those
+ * vectors, for a few solves with one LU of A − σI instead of a full
+ * eigen-analysis. The work space is allocated once per solver.
+ *
+ * Shifts. λ and w only: σ is a Collatz–Wielandt upper bound
+ * max_i (Ax)_i/x_i ≥ λ of the current positive iterate (Horn & Johnson 2013,
+ * Matrix Analysis, §8.1), so every other eigenvalue μ, |μ| ≤ λ ≤ σ, lies
+ * farther from σ than λ does and the iteration can only find λ; for σ > λ,
+ * (σI − A)⁻¹ ≥ 0 keeps the iterates one-signed, and a one-signed w with a
+ * small residual is accepted. With v as well: σ = vᵀAw/vᵀw, the two-sided
+ * Rayleigh quotient (Ostrowski 1959; Parlett 1974, Math. Comp. 28:679 —
+ * locally cubic), with v from the transposed solves; such a shift may fall
+ * below λ, so the answer is accepted only when both vectors are strictly
+ * positive, which makes it the Perron root (a positive eigenvector of a
+ * non-negative matrix belongs to its spectral radius). One factorisation
+ * serves while each solve at least halves the residual.
+ *
+ * Anything not verified goes to dominantEigenDense (or null without `fallback`).
  */
-export function perronRootFrom(a: Float64Array, n: number, start: Float64Array | null): { lambda: number; w: Float64Array; converged: boolean } {
-  if (start !== null && n > 1) {
-    const x = new Float64Array(n);
-    const y = new Float64Array(n);
-    let big = 0;
-    for (let i = 0; i < n; i++) big = Math.max(big, Math.abs(start[i] as number));
-    for (let i = 0; i < n; i++) x[i] = big > 0 ? Math.abs(start[i] as number) / big + 1e-6 : 1;
-    const shifted = new Float64Array(n * n);
-    let lambda = NaN;
-    let res = Infinity;
-    for (let attempt = 0; attempt < 3 && !(res <= 1e-13 * lambda); attempt++) {
-      matvec(a, n, x, y);
-      let sigma = 0;
-      for (let i = 0; i < n; i++) sigma = Math.max(sigma, (y[i] as number) / (x[i] as number));
-      if (!(sigma > 0) || !Number.isFinite(sigma)) break;
-      sigma *= 1 + 1e-12;
-      shifted.set(a);
-      for (let i = 0; i < n; i++) shifted[i * n + i] = (shifted[i * n + i] as number) - sigma;
-      const factors = luFactor(shifted, n, { replaceTinyPivots: true });
-      let previous = Infinity;
-      for (let it = 0; it < 8; it++) {
-        x.set(luSolve(factors, x));
-        normaliseSum(x);
-        matvec(a, n, x, y);
-        let sy = 0;
-        let sx = 0;
-        for (let i = 0; i < n; i++) {
-          sy += y[i] as number;
-          sx += x[i] as number;
-        }
-        lambda = sy / sx;
-        res = 0;
-        for (let i = 0; i < n; i++) res += Math.abs((y[i] as number) - lambda * (x[i] as number));
-        if (res <= 1e-13 * lambda || res > 0.5 * previous) break;
-        previous = res;
-      }
-      // A positive iterate for the next, tighter Collatz–Wielandt bound.
-      let mx = 0;
-      for (let i = 0; i < n; i++) mx = Math.max(mx, Math.abs(x[i] as number));
-      if (!(res <= 1e-13 * lambda)) for (let i = 0; i < n; i++) x[i] = Math.abs(x[i] as number) + 1e-12 * mx;
+export class PerronSolver {
+  /** How often dominantEigenDense answered instead of the warm iteration. */
+  fallbacks = 0;
+  private readonly left: boolean;
+  private readonly tolerance: number;
+  private readonly fallback: boolean;
+  private readonly follow: boolean;
+  private hasPrevious = false;
+  private readonly x: Float64Array;
+  private readonly v: Float64Array;
+  private readonly y: Float64Array;
+  private readonly z: Float64Array;
+  private readonly scratch: Float64Array;
+  private readonly shifted: Float64Array;
+  private readonly piv: Int32Array;
+  private readonly wOut: Float64Array;
+  private readonly vOut: Float64Array;
+
+  constructor(
+    readonly n: number,
+    options: PerronSolverOptions = {},
+  ) {
+    this.left = options.left === true;
+    this.tolerance = options.tolerance ?? WARM_TOLERANCE;
+    this.fallback = options.fallback !== false;
+    this.follow = options.follow === true;
+    this.x = new Float64Array(n);
+    this.v = new Float64Array(n);
+    this.y = new Float64Array(n);
+    this.z = new Float64Array(n);
+    this.scratch = new Float64Array(n);
+    this.shifted = new Float64Array(n * n);
+    this.piv = new Int32Array(n);
+    this.wOut = new Float64Array(n);
+    this.vOut = new Float64Array(n);
+  }
+
+  /** The Perron pair of `a` (not changed), started from `start` (with `follow`, by default from the previous answer). */
+  solve(a: Float64Array, start: PerronStart | null = null): PerronPair | null {
+    const { n } = this;
+    if (n === 1) {
+      this.wOut[0] = 1;
+      this.vOut[0] = 1;
+      return { lambda: a[0] as number, w: this.wOut, v: this.left ? this.vOut : null, converged: true, warm: true };
     }
-    if (lambda > 0 && res <= ACCEPT * lambda && oneSigned(x)) {
+    const from = start ?? (this.follow && this.hasPrevious ? { w: this.wOut, v: this.vOut } : null);
+    if (from !== null && n > 1) {
+      const lambda = this.iterate(a, from);
+      if (lambda !== null) {
+        this.hasPrevious = true;
+        return { lambda, w: this.wOut, v: this.left ? this.vOut : null, converged: true, warm: true };
+      }
+    }
+    if (!this.fallback) return null;
+    this.fallbacks += 1;
+    const full = dominantEigenDense(a, n, { second: false });
+    this.wOut.set(full.w);
+    this.vOut.set(full.v);
+    this.hasPrevious = true;
+    return { lambda: full.lambda, w: this.wOut, v: this.left ? this.vOut : null, converged: full.converged, warm: false };
+  }
+
+  /** The warm iteration; λ with wOut (and vOut) filled when verified, else null. */
+  private iterate(a: Float64Array, start: PerronStart): number | null {
+    const { n, x, v, y, z, left, tolerance } = this;
+    positiveStart(start.w, x);
+    if (left) {
+      if (start.v) positiveStart(start.v, v);
+      else v.fill(1);
+    }
+    let factors: LuFactors | null = null;
+    let factorisations = 0;
+    let solves = 0;
+    let previous = Infinity;
+    for (;;) {
+      matvec(a, n, x, y);
+      if (left) vecmat(a, n, v, z);
+      // λ estimate uᵀAx/uᵀx with u = v (two-sided) or a vector of ones.
+      let ux = 0;
+      let uy = 0;
+      for (let i = 0; i < n; i++) {
+        const u = left ? (v[i] as number) : 1;
+        ux += u * (x[i] as number);
+        uy += u * (y[i] as number);
+      }
+      const lambda = uy / ux;
+      if (!(lambda > 0) || !Number.isFinite(lambda)) return null;
+      let residual = relativeResidual(y, x, lambda);
+      if (left) residual = Math.max(residual, relativeResidual(z, v, lambda));
+      if (residual <= tolerance) return this.accept(lambda);
+      if (factors === null || solves >= WARM_SOLVES || residual > 0.5 * previous) {
+        if (factorisations === WARM_FACTORISATIONS) return null;
+        const sigma = left ? lambda : upperBound(a, n, x, y);
+        if (!(sigma > 0) || !Number.isFinite(sigma)) return null;
+        const shifted = this.shifted;
+        shifted.set(a);
+        for (let i = 0; i < n; i++) shifted[i * n + i] = (shifted[i * n + i] as number) - sigma;
+        factors = luFactorInPlace(shifted, n, this.piv, { replaceTinyPivots: true });
+        factorisations += 1;
+        solves = 0;
+        previous = Infinity;
+      } else previous = residual;
+      luSolveInPlace(factors, x, this.scratch);
       normaliseSum(x);
-      return { lambda, w: x, converged: true };
+      if (left) {
+        luSolveTransposedInPlace(factors, v, this.scratch);
+        normaliseSum(v);
+      }
+      solves += 1;
     }
   }
-  const full = dominantEigenDense(a, n, { second: false });
-  return { lambda: full.lambda, w: full.w, converged: full.converged };
+
+  /** Checks that the converged pair is the Perron pair and writes w (Σ = 1) and v (v₁ = 1). */
+  private accept(lambda: number): number | null {
+    const { n, x, v } = this;
+    if (this.left) {
+      for (let i = 0; i < n; i++) if (!((x[i] as number) > 0) || !((v[i] as number) > 0)) return null;
+    } else if (!oneSigned(x)) return null;
+    let s = 0;
+    for (let i = 0; i < n; i++) s += x[i] as number;
+    for (let i = 0; i < n; i++) this.wOut[i] = (x[i] as number) / s;
+    if (this.left) {
+      const v0 = v[0] as number;
+      for (let i = 0; i < n; i++) this.vOut[i] = (v[i] as number) / v0;
+    }
+    return lambda;
+  }
+}
+
+/**
+ * λ and w (and v with `left`) of one matrix near a known one, started from
+ * `start` (the known Perron vectors); the full dominantEigenDense answers
+ * when there is no start or the warm iteration cannot verify its answer.
+ */
+export function perronFrom(a: Float64Array, n: number, start: PerronStart | null, options: Omit<PerronSolverOptions, "follow" | "fallback"> = {}): PerronPair {
+  return new PerronSolver(n, options).solve(a, start) as PerronPair;
+}
+
+/** The two-sided warm iteration alone (λ, w, v from positive guesses `w0`, `v0` of a nearby matrix): null when it cannot verify the Perron pair. */
+export function refinePerron(a: Float64Array, n: number, w0: ArrayLike<number>, v0: ArrayLike<number>): (PerronPair & { readonly v: Float64Array }) | null {
+  const pair = new PerronSolver(n, { left: true, fallback: false }).solve(a, { w: w0, v: v0 });
+  return pair === null ? null : { ...pair, v: pair.v! };
+}
+
+/** x = |s|/max|s| + 1e-6: a strictly positive start (a zero entry would stall a Collatz–Wielandt bound). */
+function positiveStart(s: ArrayLike<number>, x: Float64Array): void {
+  let big = 0;
+  for (let i = 0; i < x.length; i++) big = Math.max(big, Math.abs(s[i] as number));
+  for (let i = 0; i < x.length; i++) x[i] = big > 0 && Number.isFinite(big) ? Math.abs(s[i] as number) / big + 1e-6 : 1;
+}
+
+/** ‖y − λx‖₁/(λ‖x‖₁). */
+function relativeResidual(y: Float64Array, x: Float64Array, lambda: number): number {
+  let r = 0;
+  let norm = 0;
+  for (let i = 0; i < x.length; i++) {
+    r += Math.abs((y[i] as number) - lambda * (x[i] as number));
+    norm += Math.abs(x[i] as number);
+  }
+  return r / (lambda * norm);
+}
+
+/**
+ * A shift just above the Collatz–Wielandt upper bound max_i (Ax)_i/x_i ≥ λ of
+ * x made strictly positive (y = Ax is recomputed when x had to change).
+ */
+function upperBound(a: Float64Array, n: number, x: Float64Array, y: Float64Array): number {
+  let positive = true;
+  let mx = 0;
+  for (let i = 0; i < n; i++) {
+    if (!((x[i] as number) > 0)) positive = false;
+    mx = Math.max(mx, Math.abs(x[i] as number));
+  }
+  if (!positive) {
+    for (let i = 0; i < n; i++) x[i] = Math.abs(x[i] as number) + 1e-12 * mx;
+    matvec(a, n, x, y);
+  }
+  let sigma = 0;
+  for (let i = 0; i < n; i++) sigma = Math.max(sigma, (y[i] as number) / (x[i] as number));
+  return sigma * (1 + 1e-12);
 }
 
 interface Finished {

@@ -4,7 +4,7 @@
 // proportional changes only to first order and say nothing of feasibility or
 // cost (Mills, Doak & Wisdom 1999, Conserv. Biol. 13:815; Caswell 2000,
 // Ecology 81:619), so the exact response is shown next to them.
-import { perronRootFrom } from "./eigen";
+import { perronFrom } from "./eigen";
 
 /** Allowed range of a parameter; either end may be infinite. */
 export interface ParameterBounds {
@@ -52,7 +52,7 @@ export function boundedTarget(requested: number, bounds: ParameterBounds): { to:
 /** Exact λ of a non-negative matrix (row-major, n×n), warm-started from a vector near its Perron vector when one is given. */
 export function exactLambda(a: Float64Array, n: number, start: Float64Array | null = null): { lambda: number; w: Float64Array } {
   if (n === 1) return { lambda: a[0] as number, w: Float64Array.of(1) };
-  const r = perronRootFrom(a, n, start);
+  const r = perronFrom(a, n, start === null ? null : { w: start });
   return { lambda: r.lambda, w: r.w };
 }
 

@@ -21,8 +21,15 @@ export interface LuFactors {
  * near-singular A − σI is the point.
  */
 export function luFactor(a: Float64Array, n: number, options?: { replaceTinyPivots?: boolean }): LuFactors {
-  const lu = Float64Array.from(a);
-  const piv = new Int32Array(n);
+  return luFactorInPlace(Float64Array.from(a), n, new Int32Array(n), options);
+}
+
+/**
+ * luFactor without allocation: factors the row-major n×n `lu` in place and
+ * writes the row order into `piv` (for solvers that factor many matrices of
+ * one size in the same work space). The returned factors share both arrays.
+ */
+export function luFactorInPlace(lu: Float64Array, n: number, piv: Int32Array, options?: { replaceTinyPivots?: boolean }): LuFactors {
   for (let i = 0; i < n; i++) piv[i] = i;
   let maxEntry = 0;
   for (let k = 0; k < lu.length; k++) maxEntry = Math.max(maxEntry, Math.abs(lu[k] as number));
@@ -72,9 +79,24 @@ export function luFactor(a: Float64Array, n: number, options?: { replaceTinyPivo
 
 /** Solve A x = b with the factors of A; returns a new vector. */
 export function luSolve(f: LuFactors, b: Float64Array): Float64Array {
-  const { n, lu, piv } = f;
+  const { n, piv } = f;
   const x = new Float64Array(n);
   for (let i = 0; i < n; i++) x[i] = b[piv[i] as number] as number;
+  substitute(f, x);
+  return x;
+}
+
+/** x ← A⁻¹x with the factors of A, in place (`scratch`: n numbers of work space). */
+export function luSolveInPlace(f: LuFactors, x: Float64Array, scratch: Float64Array): void {
+  const { n, piv } = f;
+  scratch.set(x);
+  for (let i = 0; i < n; i++) x[i] = scratch[piv[i] as number] as number;
+  substitute(f, x);
+}
+
+/** L y = Pb then U x = y, on the permuted right-hand side already in x. */
+function substitute(f: LuFactors, x: Float64Array): void {
+  const { n, lu } = f;
   for (let i = 1; i < n; i++) {
     const ri = i * n;
     let s = x[i] as number;
@@ -87,13 +109,27 @@ export function luSolve(f: LuFactors, b: Float64Array): Float64Array {
     for (let j = i + 1; j < n; j++) s -= (lu[ri + j] as number) * (x[j] as number);
     x[i] = s / (lu[ri + i] as number);
   }
-  return x;
 }
 
 /** Solve Aᵀ x = b with the factors of A (PA = LU ⇒ Aᵀ = Uᵀ Lᵀ P); returns a new vector. */
 export function luSolveTransposed(f: LuFactors, b: Float64Array): Float64Array {
-  const { n, lu, piv } = f;
+  const x = new Float64Array(f.n);
   const y = Float64Array.from(b);
+  transposedSubstitute(f, y);
+  for (let i = 0; i < f.n; i++) x[f.piv[i] as number] = y[i] as number;
+  return x;
+}
+
+/** x ← A⁻ᵀx with the factors of A, in place (`scratch`: n numbers of work space, not x). */
+export function luSolveTransposedInPlace(f: LuFactors, x: Float64Array, scratch: Float64Array): void {
+  scratch.set(x);
+  transposedSubstitute(f, scratch);
+  for (let i = 0; i < f.n; i++) x[f.piv[i] as number] = scratch[i] as number;
+}
+
+/** Uᵀ z = y, then Lᵀ on the result, in place on y. */
+function transposedSubstitute(f: LuFactors, y: Float64Array): void {
+  const { n, lu } = f;
   // Uᵀ y = b: forward substitution, column-oriented so the inner loop runs along a row of U.
   for (let i = 0; i < n; i++) {
     const ri = i * n;
@@ -109,7 +145,4 @@ export function luSolveTransposed(f: LuFactors, b: Float64Array): Float64Array {
     if (zi === 0) continue;
     for (let j = 0; j < i; j++) y[j] = (y[j] as number) - (lu[ri + j] as number) * zi;
   }
-  const x = new Float64Array(n);
-  for (let i = 0; i < n; i++) x[piv[i] as number] = y[i] as number;
-  return x;
 }

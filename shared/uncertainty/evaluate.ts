@@ -11,9 +11,8 @@
  * triangular with a zero block): one solve per offspring stage instead of
  * the whole N.
  */
-import { dominantEigenDense, spectralRadiusDense } from "../demography/eigen";
+import { dominantEigenDense, PerronSolver, spectralRadiusDense } from "../demography/eigen";
 import { graphStructure } from "../demography/graph";
-import { perronRefiner } from "../demography/perron-refine";
 import { toDense } from "../demography/matrix";
 import { luFactor, luSolve } from "../demography/lu";
 import { bindExpr, derivativeTree, FormulaEvaluationError, type BoundFormula } from "../lifecycle/formula";
@@ -68,13 +67,13 @@ export function drawEvaluator(
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (base.A[i]![j]! !== 0) cells.push([i, j]);
   const cellIndex = Int32Array.from(entries, (e) => e.row * n + e.col);
   // Draws of an irreducible life cycle that keep every arrow positive stay
-  // irreducible: their λ, w, v come from a few refinement steps started at
-  // the document's own (perron-refine.ts), verified, else the full analysis.
+  // irreducible: their λ, w, v come from a few warm-started steps from the
+  // document's own (PerronSolver, eigen.ts), verified, else the full analysis.
   const baseDense = toDense(base.A);
   const baseEigen = n > 1 && graphStructure(baseDense, n).irreducible ? dominantEigenDense(baseDense, n, { second: false }) : null;
   const warm = baseEigen !== null && baseEigen.converged && baseEigen.w.every((x) => x > 0) && baseEigen.v.every((x) => x > 0) ? baseEigen : null;
   const patternCells = Int32Array.from(cells, ([i, j]) => i * n + j);
-  const refine = perronRefiner(n);
+  const perron = new PerronSolver(n, { left: true });
   const repro = Uint8Array.from(entries, (e) => (e.kind === "reproduction" ? 1 : 0));
   // ∂a_t/∂x_k for every arrow t and tracked rate k its formula uses, bound once.
   const slotOfName = new Map(compiled.rateNames.map((name, i) => [name, i]));
@@ -153,18 +152,10 @@ export function drawEvaluator(
         if (repro[e]) f[c] = f[c]! + x;
         else u[c] = u[c]! + x;
       }
-      let eig: { lambda: number; w: Float64Array; v: Float64Array } | null = null;
-      if (warm !== null) {
-        let samePattern = true;
-        for (let k = 0; k < patternCells.length; k++) {
-          if (!(a[patternCells[k]!]! > 0)) {
-            samePattern = false;
-            break;
-          }
-        }
-        if (samePattern) eig = refine(a, warm.w, warm.v);
-      }
-      eig ??= dominantEigenDense(a, n, { second: false });
+      let samePattern = warm !== null;
+      for (let k = 0; samePattern && k < patternCells.length; k++) if (!(a[patternCells[k]!]! > 0)) samePattern = false;
+      const pair = perron.solve(a, samePattern ? warm : null)!;
+      const eig = { lambda: pair.lambda, w: pair.w, v: pair.v! };
       const lambda = eig.lambda;
       out.lambda = lambda;
       out.w.set(eig.w);

@@ -1,9 +1,8 @@
 import jStat from "jstat";
 import { describe, expect, it } from "vitest";
 import { analyzeMatrix, createRandom } from "../../shared/demography";
-import { dominantEigenDense } from "../../shared/demography/eigen";
+import { dominantEigenDense, refinePerron } from "../../shared/demography/eigen";
 import { toDense } from "../../shared/demography/matrix";
-import { refinePerron } from "../../shared/demography/perron-refine";
 import { LifeCycleSchema, type LifeCycle, type LifeCycleInput } from "../../shared/lifecycle";
 import { normalCdf } from "../../shared/risk";
 import {
