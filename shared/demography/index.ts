@@ -36,7 +36,6 @@ export {
   mergeChunks,
   growthRateApproximation,
   defaultBurnIn,
-  wilsonInterval,
   SimulationError,
   FINAL_BINS_PER_DECADE,
   FINAL_LOG10_MIN,
@@ -46,7 +45,6 @@ export {
   DEFAULT_MOMENT_SAMPLES,
   MOMENT_STREAM,
   MAX_DEMOGRAPHIC_COUNT,
-  Z95,
   type StochasticModel,
   type EnvironmentMatrices,
   type SampledMatrices,
@@ -62,6 +60,7 @@ export {
   type ExtinctionPoint,
   type StochasticResult,
 } from "./stochastic";
+export { wilsonInterval, Z95 } from "../stats/normal";
 export { exactLambda, exactChange, boundedTarget, rankByMagnitude, type ParameterBounds, type MatrixAt, type Baseline, type ExactChange } from "./levers";
 export { breakEvenValues, type BreakEven, type BreakEvenOptions, type Crossing, type LambdaAt } from "./break-even";
 export { ltreContributions, midpointSensitivities, LtreError, type LtreResult } from "./ltre";

@@ -53,6 +53,7 @@
 import { analyzeMatrix } from "./analyze";
 import { MatrixInputError, MAX_PROJECTION_STEPS } from "./input";
 import { createRandom, type Random } from "./random";
+import { wilsonInterval, Z95 } from "../stats/normal";
 
 /** A matrix as rows (row i = stage at t+1, column j = stage at t). */
 export type MatrixRows = readonly (readonly number[])[];
@@ -297,8 +298,6 @@ const FINE_BINS = (FINAL_LOG10_MAX - FINAL_LOG10_MIN) * FINAL_BINS_PER_DECADE;
 export const FINAL_QUANTILES = [0.025, 0.05, 0.1, 0.25, 0.5, 0.75, 0.9, 0.95, 0.975] as const;
 /** Bars of the display histogram at most. */
 export const DISPLAY_BINS = 30;
-/** Standard normal quantile for the 95 % intervals. */
-export const Z95 = 1.959963984540054;
 /** Default number of matrices a sampler model draws for Tuljapurkar's approximation (fewer for large matrices: at most 4e7/n²). */
 export const DEFAULT_MOMENT_SAMPLES = 20_000;
 /** Random stream used for those draws (chunk streams are 0, 1, 2, …). */
@@ -1511,17 +1510,6 @@ function mergeMoments(a: Moments, b: Moments): Moments {
   const count = a.count + b.count;
   const delta = b.mean - a.mean;
   return { count, mean: a.mean + (delta * b.count) / count, m2: a.m2 + b.m2 + (delta * delta * a.count * b.count) / count };
-}
-
-/** Wilson score interval for k successes in n trials (z = 1.96 for 95 %). */
-export function wilsonInterval(k: number, n: number, z = Z95): { lower: number; upper: number } {
-  if (n <= 0) return { lower: 0, upper: 1 };
-  const p = k / n;
-  const z2 = z * z;
-  const denom = 1 + z2 / n;
-  const centre = (p + z2 / (2 * n)) / denom;
-  const half = (z * Math.sqrt((p * (1 - p)) / n + z2 / (4 * n * n))) / denom;
-  return { lower: Math.max(0, centre - half), upper: Math.min(1, centre + half) };
 }
 
 function defaultReportYears(T: number): number[] {

@@ -7,7 +7,7 @@
  * threshold by each horizon with a parametric-bootstrap interval.
  */
 import { createRandom } from "../demography/random";
-import { normalCdf } from "../risk/distributions";
+import { normalCdf } from "../stats/normal";
 import { chiSquareQuantile, studentTTwoSided } from "./intervals";
 
 export interface CountPoint {

@@ -1,6 +1,7 @@
 // Public surface of Stagewright's field-data estimators: census counts and
 // stage-fate records in, plain JSON-serialisable estimates out, no I/O.
-export { wilson, clopperPearson, binomialInterval, normalQuantile, studentTTwoSided, chiSquareQuantile, type Interval, type BinomialMethod } from "./intervals";
+export { wilson, clopperPearson, binomialInterval, studentTTwoSided, chiSquareQuantile, type Interval, type BinomialMethod } from "./intervals";
+export { normalQuantile } from "../stats/normal";
 export {
   analyzeCounts,
   quasiExtinctionProbability,

@@ -5,20 +5,7 @@
  * functions, so nothing here is tabulated by hand.
  */
 import jStat from "jstat";
-import { normalCdf } from "../risk/distributions";
-
-/** Standard normal quantile Φ⁻¹(p) by bisection on Φ (|error| < 1e-12; used only for z of a confidence level). */
-export function normalQuantile(p: number): number {
-  if (!(p > 0 && p < 1)) throw new RangeError(`A normal quantile needs 0 < p < 1; got ${p}.`);
-  let lo = -40;
-  let hi = 40;
-  for (let k = 0; k < 200 && hi - lo > 1e-13; k++) {
-    const mid = 0.5 * (lo + hi);
-    if (normalCdf(mid) < p) lo = mid;
-    else hi = mid;
-  }
-  return 0.5 * (lo + hi);
-}
+import { normalQuantile, wilsonInterval } from "../stats/normal";
 
 export interface Interval {
   lower: number;
@@ -34,12 +21,7 @@ export type BinomialMethod = "wilson" | "clopper-pearson";
  */
 export function wilson(k: number, n: number, level = 0.95): Interval {
   checkTrials(k, n);
-  const z = normalQuantile(0.5 + level / 2);
-  const p = k / n;
-  const z2 = z * z;
-  const centre = (p + z2 / (2 * n)) / (1 + z2 / n);
-  const half = (z * Math.sqrt((p * (1 - p)) / n + z2 / (4 * n * n))) / (1 + z2 / n);
-  return { lower: k === 0 ? 0 : Math.max(0, centre - half), upper: k === n ? 1 : Math.min(1, centre + half), level };
+  return { ...wilsonInterval(k, n, normalQuantile(0.5 + level / 2)), level };
 }
 
 /**

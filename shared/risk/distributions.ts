@@ -24,6 +24,7 @@
 // scores beyond ±8 (probability 1.2e-15) are clamped.
 import jStat from "jstat";
 import type { Random } from "../demography/random";
+import { logNormalDensity, normalUpperTail as upperTail } from "../stats/normal";
 
 export type RateDistribution = "beta" | "lognormal" | "gamma";
 
@@ -66,40 +67,6 @@ export function drawRate(law: RateLaw, rng: Random): number {
   }
 }
 
-const SQRT_2PI = Math.sqrt(2 * Math.PI);
-const LOG_SQRT_2PI = Math.log(SQRT_2PI);
-
-/** Standard normal density φ(z). */
-export function normalDensity(z: number): number {
-  return Math.exp(-0.5 * z * z) / SQRT_2PI;
-}
-
-/**
- * Upper tail Q(x) = 1 − Φ(x) for x ≥ 0, to about 1e-15 relative: the series
- * Φ(x) − ½ = φ(x) Σ x^(2k+1)/(2k+1)!! below 2, Laplace's continued fraction
- * Q(x) = φ(x)/(x + 1/(x + 2/(x + 3/(x + …)))) (300 terms) from 2 on.
- */
-function upperTail(x: number): number {
-  if (x < 2) {
-    let term = x;
-    let sum = x;
-    for (let k = 1; k < 500; k++) {
-      term *= (x * x) / (2 * k + 1);
-      sum += term;
-      if (term < 1e-17 * sum) break;
-    }
-    return 0.5 - normalDensity(x) * sum;
-  }
-  let f = x;
-  for (let k = 300; k >= 1; k--) f = x + k / f;
-  return normalDensity(x) / f;
-}
-
-/** Standard normal distribution function Φ(z), accurate in both tails. */
-export function normalCdf(z: number): number {
-  return z >= 0 ? 1 - upperTail(z) : upperTail(-z);
-}
-
 const TABLE_MIN = -8;
 const TABLE_STEP = 1 / 16;
 const TABLE_POINTS = 257;
@@ -119,7 +86,7 @@ export class NormalScoreQuantile {
     const TINY = 1e-300;
     for (let k = 0; k < TABLE_POINTS; k++) {
       const z = TABLE_MIN + k * TABLE_STEP;
-      const logPhi = -0.5 * z * z - LOG_SQRT_2PI;
+      const logPhi = logNormalDensity(z);
       if (law.kind === "beta") {
         const { alpha: a, beta: b } = law;
         // x and 1 − x, each computed from the tail it is small in.

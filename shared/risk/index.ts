@@ -31,4 +31,5 @@ export {
   type ChunkPlan,
   type PlannedChunk,
 } from "./plan";
-export { rateLaw, drawRate, normalCdf, normalDensity, normalScoreMap, quantileOfNormalScore, NormalScoreQuantile, type RateLaw, type RateDistribution } from "./distributions";
+export { rateLaw, drawRate, normalScoreMap, quantileOfNormalScore, NormalScoreQuantile, type RateLaw, type RateDistribution } from "./distributions";
+export { normalCdf, normalDensity } from "../stats/normal";

@@ -9,10 +9,10 @@
  * estimate ± z·SE; P(λ < 1) = Φ((1 − λ)/SE(λ)). Both assume a roughly normal
  * λ: a Monte Carlo Run checks that when the SEs are large.
  */
-import { normalCdf } from "../risk/distributions";
 import { buildMatrices, compileLifeCycle, type CompiledLifeCycle, type LifeCycle } from "../lifecycle/index";
 import { drawEvaluator, ratesUsedByFormulas, type DrawEvaluator, type DrawResult } from "./evaluate";
-import { normalQuantile, uncertaintyModel, type UncertaintyIssue, type UncertaintyModel, type UncertaintySource } from "./laws";
+import { normalCdf, normalQuantile } from "../stats/normal";
+import { uncertaintyModel, type UncertaintyIssue, type UncertaintyModel, type UncertaintySource } from "./laws";
 
 export const DELTA_LEVEL = 0.95;
 

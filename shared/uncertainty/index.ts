@@ -9,7 +9,6 @@ export {
   rateUncertainty,
   blockingIssues,
   inferredScale,
-  normalQuantile,
   type RateScale,
   type UncertainRateFields,
   type UncertaintyDocument,
@@ -19,6 +18,7 @@ export {
   type UncertaintyIssue,
   type UncertaintyModel,
 } from "./laws";
+export { normalQuantile } from "../stats/normal";
 export { drawEvaluator, ratesUsedByFormulas, type DrawEvaluator, type DrawResult } from "./evaluate";
 export { deltaMethod, lifeCycleDeltaMethod, DELTA_LEVEL, type DeltaEstimate, type DeltaContribution, type DeltaMethodResult, type DeltaInput } from "./delta";
 export {

@@ -20,7 +20,8 @@
  */
 import { choleskyLower } from "../demography/index";
 import { rateScale, type RateScale } from "../lifecycle/index";
-import { normalCdf, normalDensity, rateLaw, type RateLaw } from "../risk/distributions";
+import { rateLaw, type RateLaw } from "../risk/distributions";
+import { normalQuantile } from "../stats/normal";
 
 
 /** The fields of a vital rate this file reads (structural, so v1 and v2 documents both fit). */
@@ -84,21 +85,6 @@ export interface UncertaintyModel {
   /** Lower Cholesky factor of `correlation`, or null when no correlation is given. */
   readonly cholesky: Float64Array | null;
   readonly issues: UncertaintyIssue[];
-}
-
-/** Normal quantile z with Φ(z) = p (0 < p < 1): bisection to bracket, then Newton steps on Φ. */
-export function normalQuantile(p: number): number {
-  if (!(p > 0 && p < 1)) throw new RangeError(`A probability strictly between 0 and 1 is needed; got ${p}.`);
-  let lo = -40;
-  let hi = 40;
-  for (let k = 0; k < 60; k++) {
-    const mid = (lo + hi) / 2;
-    if (normalCdf(mid) < p) lo = mid;
-    else hi = mid;
-  }
-  let z = (lo + hi) / 2;
-  for (let k = 0; k < 3; k++) z -= (normalCdf(z) - p) / normalDensity(z);
-  return z;
 }
 
 /** The scale of a rate: as given, or inferred from its value (schema.ts's rateScale). */

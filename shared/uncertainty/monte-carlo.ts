@@ -13,6 +13,7 @@
 import { createRandom, type Random } from "../demography/index";
 import { buildMatrices, compileLifeCycle, LifeCycleFormulaError, type CompiledLifeCycle, type LifeCycle } from "../lifecycle/index";
 import { normalScoreMap } from "../risk/distributions";
+import { wilsonInterval } from "../stats/normal";
 import { drawEvaluator, ratesUsedByFormulas, type DrawEvaluator, type DrawResult } from "./evaluate";
 import { uncertaintyModel, type SamplingLaw, type UncertaintyIssue, type UncertaintyModel } from "./laws";
 import { decodeFloat64, encodeFloat64, HistogramAccumulator, mergeHistograms, summarizeDraws, summarizeHistogram, type ItemHistogram, type ItemSummary } from "./summaries";
@@ -194,16 +195,6 @@ export interface MonteCarloResult {
   issues: UncertaintyIssue[];
 }
 
-/** Wilson score interval for a proportion (Wilson 1927). */
-function wilson(k: number, n: number, z = 1.959963984540054): { lower: number; upper: number } {
-  if (n === 0) return { lower: 0, upper: 1 };
-  const p = k / n;
-  const d = 1 + (z * z) / n;
-  const c = (p + (z * z) / (2 * n)) / d;
-  const h = (z * Math.sqrt((p * (1 - p)) / n + (z * z) / (4 * n * n))) / d;
-  return { lower: Math.max(0, c - h), upper: Math.min(1, c + h) };
-}
-
 function lambdaHistogram(values: Float64Array): LambdaHistogram {
   const finite = values.filter((x) => Number.isFinite(x));
   let lo = Infinity;
@@ -259,7 +250,7 @@ export function mergeMonteCarlo(setup: MonteCarloSetup, seed: number, partials: 
     draws,
     seed,
     level,
-    lambda: { ...lambdaSummary, probabilityBelowOne: below / draws, probabilityBelowOneInterval: wilson(below, draws) },
+    lambda: { ...lambdaSummary, probabilityBelowOne: below / draws, probabilityBelowOneInterval: wilsonInterval(below, draws) },
     lambdaHistogram: lambdaHistogram(lambdas),
     netReproductiveRate: summarizeDraws(concat(partials.map((p) => p.r0)), level),
     generationTimeR0: summarizeDraws(concat(partials.map((p) => p.generationTimeR0)), level),
