@@ -352,17 +352,17 @@ export function spectralRadiusDense(a: Float64Array, n: number, structure?: Grap
   return { value: full.lambda, converged: full.converged };
 }
 
-/** Relative residual ‖Ax − λx‖₁/(λ‖x‖₁) the warm-started solver aims for by default. */
+/** Relative residual ‖Ax − λx‖₁/(λ‖x‖₁) the warm-started solver accepts by default. */
 const WARM_TOLERANCE = 1e-13;
 /** Factorisations of A − σI the warm-started solver may make in one call. */
-const WARM_FACTORISATIONS = 4;
-/** Solves with one factorisation before the shift is renewed (sooner when a solve does not halve the residual). */
-const WARM_SOLVES = 8;
+const WARM_FACTORISATIONS = 8;
+/** Solves with one factorisation at the most before the shift is renewed. */
+const WARM_SOLVES = 12;
 
 export interface PerronSolverOptions {
   /** Also compute the left vector v (reproductive values); default false: λ and w only. */
   readonly left?: boolean;
-  /** Relative residual ‖Ax − λx‖₁/(λ‖x‖₁) accepted (default 1e-13); with `left`, for v as well. */
+  /** Relative residual ‖Ax − λx‖₁/(λ‖x‖₁) accepted (default 1e-13; the iteration aims ten times lower while rounding lets it); with `left`, for v as well. */
   readonly tolerance?: number;
   /** When the warm iteration cannot verify its answer: true (default) asks dominantEigenDense, false returns null. */
   readonly fallback?: boolean;
@@ -408,7 +408,8 @@ export interface PerronStart {
  * below λ, so the answer is accepted only when both vectors are strictly
  * positive, which makes it the Perron root (a positive eigenvector of a
  * non-negative matrix belongs to its spectral radius). One factorisation
- * serves while each solve at least halves the residual.
+ * serves as long as the solves it still needs, at the rate the residual
+ * falls, cost less than a new LU at the better shift now known.
  *
  * Anything not verified goes to dominantEigenDense (or null without `fallback`).
  */
@@ -485,25 +486,44 @@ export class PerronSolver {
     let factors: LuFactors | null = null;
     let factorisations = 0;
     let solves = 0;
-    let previous = Infinity;
+    let before = Infinity;
+    // Flops of one more solve with its residual check, and of a new LU.
+    const solveCost = (left ? 5 : 3) * n * n;
+    const factorCost = (n * n * n) / 3;
     for (;;) {
       matvec(a, n, x, y);
-      if (left) vecmat(a, n, v, z);
       // λ estimate uᵀAx/uᵀx with u = v (two-sided) or a vector of ones.
       let ux = 0;
       let uy = 0;
-      for (let i = 0; i < n; i++) {
-        const u = left ? (v[i] as number) : 1;
-        ux += u * (x[i] as number);
-        uy += u * (y[i] as number);
+      if (left) {
+        for (let i = 0; i < n; i++) {
+          ux += (v[i] as number) * (x[i] as number);
+          uy += (v[i] as number) * (y[i] as number);
+        }
+      } else {
+        for (let i = 0; i < n; i++) {
+          ux += x[i] as number;
+          uy += y[i] as number;
+        }
       }
       const lambda = uy / ux;
       if (!(lambda > 0) || !Number.isFinite(lambda)) return null;
       let residual = relativeResidual(y, x, lambda);
-      if (left) residual = Math.max(residual, relativeResidual(z, v, lambda));
-      if (residual <= tolerance) return this.accept(lambda);
-      if (factors === null || solves >= WARM_SOLVES || residual > 0.5 * previous) {
-        if (factorisations === WARM_FACTORISATIONS) return null;
+      if (left && residual <= tolerance) {
+        // v's residual only once w has converged (v converges with w under the two-sided shifts).
+        vecmat(a, n, v, z);
+        residual = Math.max(residual, relativeResidual(z, v, lambda));
+      }
+      // Aim ten times below the tolerance; settle for the tolerance once rounding stalls the residual.
+      const aim = tolerance / 10;
+      if (residual <= aim) return this.accept(lambda);
+      const rate = residual / before;
+      const stalled = !(rate < 0.5);
+      if (stalled && residual <= tolerance) return this.accept(lambda);
+      // Keep the factors while the solves still needed at the rate of the last one cost less than a new LU at a better shift.
+      const stillNeeded = Math.log(aim / residual) / Math.log(rate);
+      if (factors === null || solves >= WARM_SOLVES || stalled || stillNeeded * solveCost > factorCost + solveCost) {
+        if (factorisations === WARM_FACTORISATIONS) return residual <= tolerance ? this.accept(lambda) : null;
         const sigma = left ? lambda : upperBound(a, n, x, y);
         if (!(sigma > 0) || !Number.isFinite(sigma)) return null;
         const shifted = this.shifted;
@@ -512,8 +532,8 @@ export class PerronSolver {
         factors = luFactorInPlace(shifted, n, this.piv, { replaceTinyPivots: true });
         factorisations += 1;
         solves = 0;
-        previous = Infinity;
-      } else previous = residual;
+      }
+      before = residual;
       luSolveInPlace(factors, x, this.scratch);
       normaliseSum(x);
       if (left) {
