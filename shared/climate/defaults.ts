@@ -37,17 +37,18 @@ export interface ThermalParameter {
   unit: string;
 }
 
-/** Each form's parameters in the order the Climate tab and the report list them. */
+const ARRHENIUS_PARAMETERS: ThermalParameter[] = [
+  { key: "activationEnergy", label: "Activation energy E", unit: "eV" },
+  { key: "referenceTemperature", label: "Reference temperature", unit: "°C" },
+  { key: "valueAtReference", label: "Value at the reference temperature", unit: "" },
+];
+
+/** Each form's parameters in the order the Climate tab and the report list them; the fit labels its estimates with them too. */
 export const THERMAL_PARAMETERS: Record<ThermalForm, ThermalParameter[]> = {
-  arrhenius: [
-    { key: "activationEnergy", label: "Activation energy E", unit: "eV" },
-    { key: "referenceTemperature", label: "Reference temperature", unit: "°C" },
-    { key: "valueAtReference", label: "Value at the reference temperature", unit: "" },
-  ],
+  arrhenius: ARRHENIUS_PARAMETERS,
+  // Sharpe–Schoolfield: the Arrhenius rise and a high-temperature inactivation.
   schoolfield: [
-    { key: "activationEnergy", label: "Activation energy E", unit: "eV" },
-    { key: "referenceTemperature", label: "Reference temperature", unit: "°C" },
-    { key: "valueAtReference", label: "Value at the reference temperature", unit: "" },
+    ...ARRHENIUS_PARAMETERS,
     { key: "inactivationEnergy", label: "High-temperature inactivation energy E_h", unit: "eV" },
     { key: "inactivationTemperature", label: "Inactivation temperature T_h (half inactive)", unit: "°C" },
   ],
@@ -59,8 +60,8 @@ export const THERMAL_PARAMETERS: Record<ThermalForm, ThermalParameter[]> = {
   ],
   briere: [
     { key: "coefficient", label: "Coefficient a", unit: "per °C^2.5" },
-    { key: "lower", label: "Lower temperature limit T₀", unit: "°C" },
-    { key: "upper", label: "Upper temperature limit T_L", unit: "°C" },
+    { key: "lower", label: "Lower limit T₀", unit: "°C" },
+    { key: "upper", label: "Upper limit T_L", unit: "°C" },
   ],
 };
 

@@ -10,6 +10,7 @@
 import { levenbergMarquardt } from "ml-levenberg-marquardt";
 import { inverse, Matrix } from "ml-matrix";
 import type { ThermalForm, ThermalResponse, ThermalTarget } from "../lifecycle/thermal";
+import { RESPONSE_DEFAULTS, THERMAL_PARAMETERS } from "./defaults";
 import { BOLTZMANN_EV, kelvin, responseValue } from "./responses";
 
 export interface FitParameter {
@@ -18,30 +19,24 @@ export interface FitParameter {
   unit: string;
 }
 
-/** The parameters each form fits, in order. Schoolfield and Arrhenius keep T_ref fixed. */
-export const FIT_PARAMETERS: Record<ThermalForm, FitParameter[]> = {
-  arrhenius: [
-    { key: "valueAtReference", label: "Rate at the reference temperature", unit: "rate units" },
-    { key: "activationEnergy", label: "Activation energy E", unit: "eV" },
-  ],
-  schoolfield: [
-    { key: "valueAtReference", label: "Rate at the reference temperature", unit: "rate units" },
-    { key: "activationEnergy", label: "Activation energy E", unit: "eV" },
-    { key: "inactivationEnergy", label: "Inactivation energy E_h", unit: "eV" },
-    { key: "inactivationTemperature", label: "Inactivation temperature T_h", unit: "°C" },
-  ],
-  "gaussian-quadratic": [
-    { key: "valueAtOptimum", label: "Value at the optimum", unit: "rate units" },
-    { key: "optimum", label: "Optimum T_opt", unit: "°C" },
-    { key: "width", label: "Width σ", unit: "°C" },
-    { key: "criticalMaximum", label: "Critical thermal maximum CT_max", unit: "°C" },
-  ],
-  briere: [
-    { key: "coefficient", label: "Coefficient a", unit: "rate units per °C^2.5" },
-    { key: "lower", label: "Lower limit T₀", unit: "°C" },
-    { key: "upper", label: "Upper limit T_L", unit: "°C" },
-  ],
+/** The order in which each form's parameters are fitted (that of `build`). Schoolfield and Arrhenius keep T_ref fixed. */
+const FIT_ORDER: Record<ThermalForm, string[]> = {
+  arrhenius: ["valueAtReference", "activationEnergy"],
+  schoolfield: ["valueAtReference", "activationEnergy", "inactivationEnergy", "inactivationTemperature"],
+  "gaussian-quadratic": ["valueAtOptimum", "optimum", "width", "criticalMaximum"],
+  briere: ["coefficient", "lower", "upper"],
 };
+
+/** The parameters each form fits, in order, labelled as the response form labels them. */
+export const FIT_PARAMETERS = Object.fromEntries(
+  (Object.keys(FIT_ORDER) as ThermalForm[]).map((form) => [
+    form,
+    FIT_ORDER[form].map((key): FitParameter => {
+      const p = THERMAL_PARAMETERS[form].find((q) => q.key === key)!;
+      return { key, label: p.label, unit: p.unit || "rate units" };
+    }),
+  ]),
+) as Record<ThermalForm, FitParameter[]>;
 
 export interface FitOptions {
   form: ThermalForm;
@@ -97,7 +92,8 @@ function arrheniusStart(T: readonly number[], y: readonly number[], Tref: number
       ys.push(Math.log(y[i]!));
     }
   });
-  if (xs.length < 2) return [Math.max(1e-6, Math.max(...y)), 0.65];
+  const typicalE = RESPONSE_DEFAULTS.activationEnergy.value;
+  if (xs.length < 2) return [Math.max(1e-6, Math.max(...y)), typicalE];
   const mx = xs.reduce((a, b) => a + b, 0) / xs.length;
   const my = ys.reduce((a, b) => a + b, 0) / ys.length;
   let sxy = 0;
@@ -106,8 +102,8 @@ function arrheniusStart(T: readonly number[], y: readonly number[], Tref: number
     sxy += (x - mx) * (ys[i]! - my);
     sxx += (x - mx) ** 2;
   });
-  const E = sxx > 0 ? sxy / sxx : 0.65;
-  return [Math.exp(my - E * mx), E > 0.01 ? E : 0.65];
+  const E = sxx > 0 ? sxy / sxx : typicalE;
+  return [Math.exp(my - E * mx), E > 0.01 ? E : typicalE];
 }
 
 function guess(form: ThermalForm, T: readonly number[], y: readonly number[], Tref: number): number[] {
