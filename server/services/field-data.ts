@@ -3,24 +3,26 @@ import {
   analyzeCounts,
   estimateStageFates,
   lifeCycleFromEstimate,
-  type CountsAnalysis,
   type CountsColumns,
   type FateColumns,
   type FateSample,
-  type StageFateEstimate,
 } from "../../shared/fielddata";
 import { LifeCycleSchema } from "../../shared/lifecycle";
 import type { LifeCycleRecord } from "../../shared/schemas/life-cycles";
 import {
   UploadSchema,
   type CountsAnalysisQuery,
+  type CountsAnalysisResult,
   type DatasetKind,
   type DatasetRename,
   type DatasetSummary,
+  type FateAnalysisResult,
   type FateAnalysisSettings,
+  type FateGroup,
   type ParseOptions,
   type StartLifeCycle,
   type UploadPreview,
+  type SiteSeries,
   type UploadRequest,
   type ValidationReport,
 } from "../../shared/schemas/field-data";
@@ -259,19 +261,6 @@ async function datasetOfKind(db: DbOrTx, id: string, kind: DatasetKind) {
 
 // ------------------------------------------------------------------ counts
 
-export interface SiteSeries {
-  site: string;
-  points: { t: number; label: string; count: number; stageCounts: Record<string, number | null> | null }[];
-  analysis: CountsAnalysis;
-}
-
-export interface CountsAnalysisResult {
-  datasetId: string;
-  stages: string[];
-  threshold: number | null;
-  sites: SiteSeries[];
-}
-
 export async function countsAnalysis(db: Db, id: string, query: CountsAnalysisQuery): Promise<CountsAnalysisResult> {
   const d = await datasetOfKind(db, id, "counts");
   const rows = await db.select().from(countRows).where(eq(countRows.datasetId, id)).orderBy(asc(countRows.site), asc(countRows.time));
@@ -298,23 +287,6 @@ export async function countsAnalysis(db: Db, id: string, query: CountsAnalysisQu
 }
 
 // -------------------------------------------------------------- stage fates
-
-export interface FateGroup {
-  label: string;
-  site: string | null;
-  year: number | null;
-  records: number;
-  estimate: StageFateEstimate;
-}
-
-export interface FateAnalysisResult {
-  datasetId: string;
-  stages: string[];
-  settings: FateAnalysisSettings;
-  pooled: FateGroup;
-  bySite: FateGroup[];
-  byYear: FateGroup[];
-}
 
 /** The stage-fate records of a dataset as columns, optionally one site and/or one year only. */
 export async function loadFateSample(db: DbOrTx, id: string, filter: { site?: string; year?: number } = {}): Promise<{ sample: FateSample; site: string[]; year: Float64Array; stages: string[] }> {

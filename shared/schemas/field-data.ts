@@ -4,6 +4,7 @@
  * are exported beside the schemas (the upload page states them).
  */
 import { z } from "zod";
+import type { CountsAnalysis, StageFateEstimate } from "../fielddata";
 
 export const MAX_UPLOAD_BYTES = 20 * 1024 * 1024;
 export const MAX_UPLOAD_ROWS = 500_000;
@@ -20,6 +21,7 @@ export type DatasetKind = z.infer<typeof DatasetKindSchema>;
 
 export const DELIMITERS = [",", ";", "\t", "|"] as const;
 export const DelimiterSchema = z.enum(["auto", ...DELIMITERS], { error: 'The delimiter is "auto", ",", ";", a tab or "|".' });
+export type Delimiter = z.infer<typeof DelimiterSchema>;
 
 const Column = z.string().trim().min(1, "Choose a column.").max(MAX_COLUMN_NAME_LENGTH);
 
@@ -118,6 +120,40 @@ export const RunOnDatasetSchema = z.strictObject({
 });
 
 // --------------------------------------------------------------- answers
+
+/** One site's census series and its count-based analysis. */
+export interface SiteSeries {
+  site: string;
+  points: { t: number; label: string; count: number; stageCounts: Record<string, number | null> | null }[];
+  analysis: CountsAnalysis;
+}
+
+/** The answer of the counts analysis. */
+export interface CountsAnalysisResult {
+  datasetId: string;
+  stages: string[];
+  threshold: number | null;
+  sites: SiteSeries[];
+}
+
+/** Stage-fate estimates from one group of records (all, one site or one year). */
+export interface FateGroup {
+  label: string;
+  site: string | null;
+  year: number | null;
+  records: number;
+  estimate: StageFateEstimate;
+}
+
+/** The answer of the stage-fate analysis. */
+export interface FateAnalysisResult {
+  datasetId: string;
+  stages: string[];
+  settings: FateAnalysisSettings;
+  pooled: FateGroup;
+  bySite: FateGroup[];
+  byYear: FateGroup[];
+}
 
 /** What a finished λ bootstrap Run holds. */
 export interface BootstrapRunResult {

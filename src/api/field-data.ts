@@ -5,16 +5,24 @@
  */
 import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useEffect } from "react";
+import type { z } from "zod";
 import type { CountsAnalysis, StageFateEstimate } from "../../shared/fielddata";
 import type {
   BootstrapRunResult,
-  BootstrapRunSettings,
-  CountsMapping,
+  BootstrapSettingsSchema,
+  CountsAnalysisQuery,
+  CountsAnalysisResult,
   DatasetKind,
+  DatasetRename,
   DatasetSummary,
+  FateAnalysisResult,
   FateAnalysisSettings,
-  FatesMapping,
+  FateGroup,
+  PreviewSchema,
+  SiteSeries,
+  StartLifeCycle,
   UploadPreview,
+  UploadSchema,
   ValidationReport,
 } from "../../shared/schemas/field-data";
 import type { LifeCycleRecord } from "../../shared/schemas/life-cycles";
@@ -22,34 +30,20 @@ import type { RunRecord, RunStatus, RunSummary } from "../../shared/schemas/runs
 import { api, segment } from "./client";
 import { queryKeys } from "./keys";
 
-export type { BootstrapRunResult, CountsAnalysis, DatasetKind, DatasetSummary, FateAnalysisSettings, StageFateEstimate, UploadPreview, ValidationReport };
-
-export interface SiteSeries {
-  site: string;
-  points: { t: number; label: string; count: number; stageCounts: Record<string, number | null> | null }[];
-  analysis: CountsAnalysis;
-}
-export interface CountsAnalysisResult {
-  datasetId: string;
-  stages: string[];
-  threshold: number | null;
-  sites: SiteSeries[];
-}
-export interface FateGroup {
-  label: string;
-  site: string | null;
-  year: number | null;
-  records: number;
-  estimate: StageFateEstimate;
-}
-export interface FateAnalysisResult {
-  datasetId: string;
-  stages: string[];
-  settings: FateAnalysisSettings;
-  pooled: FateGroup;
-  bySite: FateGroup[];
-  byYear: FateGroup[];
-}
+export type {
+  BootstrapRunResult,
+  CountsAnalysis,
+  CountsAnalysisResult,
+  DatasetKind,
+  DatasetSummary,
+  FateAnalysisResult,
+  FateAnalysisSettings,
+  FateGroup,
+  SiteSeries,
+  StageFateEstimate,
+  UploadPreview,
+  ValidationReport,
+};
 
 // ------------------------------------------------------------------ datasets
 
@@ -79,7 +73,7 @@ export const datasetFileUrl = (datasetId: string) => `/api/v1/datasets/${segment
 export function useRenameDataset(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: ({ id, name }: { id: string; name: string }) => api.patch<DatasetSummary>(`/datasets/${segment(id)}`, { name }),
+    mutationFn: ({ id, name }: { id: string } & DatasetRename) => api.patch<DatasetSummary>(`/datasets/${segment(id)}`, { name }),
     onSuccess: (d) => {
       queryClient.setQueryData(queryKeys.datasets.detail(d.id), d);
       return queryClient.invalidateQueries({ queryKey: queryKeys.studies.detail(studyId) });
@@ -100,15 +94,10 @@ export function useDeleteDataset(studyId: string) {
 
 // -------------------------------------------------------------------- upload
 
-export interface UploadParts {
-  file: File;
-  kind: DatasetKind;
-  name: string;
-  mapping: CountsMapping | FatesMapping;
-  options: Record<string, unknown>;
-}
+/** The file and the fields of UploadSchema sent with it (multipart; `mapping` and `options` as JSON). */
+export type UploadParts = { file: File } & z.input<typeof UploadSchema>;
 
-function form(parts: Partial<UploadParts>): FormData {
+function form(parts: { file: File } & Partial<z.input<typeof UploadSchema>>): FormData {
   const f = new FormData();
   if (parts.kind) f.set("kind", parts.kind);
   if (parts.name !== undefined) f.set("name", parts.name);
@@ -120,7 +109,7 @@ function form(parts: Partial<UploadParts>): FormData {
 
 export function usePreviewUpload(studyId: string) {
   return useMutation({
-    mutationFn: (parts: { file: File; options: Record<string, unknown> }) => api.postForm<UploadPreview>(`/studies/${segment(studyId)}/datasets/preview`, form(parts)),
+    mutationFn: (parts: { file: File } & z.input<typeof PreviewSchema>) => api.postForm<UploadPreview>(`/studies/${segment(studyId)}/datasets/preview`, form(parts)),
   });
 }
 
@@ -152,12 +141,7 @@ const query = (o: Record<string, unknown>) => {
   return s ? `?${s}` : "";
 };
 
-export interface CountsQuery {
-  threshold?: number;
-  maxHorizon: number;
-}
-
-export function useCountsAnalysis(datasetId: string, q: CountsQuery) {
+export function useCountsAnalysis(datasetId: string, q: CountsAnalysisQuery) {
   return useQuery({
     queryKey: queryKeys.datasets.countsAnalysis(datasetId, q),
     queryFn: ({ signal }) => api.get<CountsAnalysisResult>(`/datasets/${segment(datasetId)}/counts-analysis${query({ ...q })}`, signal),
@@ -176,7 +160,7 @@ export function useFateAnalysis(datasetId: string, settings: FateAnalysisSetting
 export function useStartLifeCycle(datasetId: string, studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: (body: { name: string; settings: FateAnalysisSettings }) => api.post<LifeCycleRecord>(`/datasets/${segment(datasetId)}/life-cycles`, body),
+    mutationFn: (body: StartLifeCycle) => api.post<LifeCycleRecord>(`/datasets/${segment(datasetId)}/life-cycles`, body),
     onSuccess: () => queryClient.invalidateQueries({ queryKey: queryKeys.studies.detail(studyId) }),
   });
 }
@@ -214,7 +198,7 @@ export function useBootstrapRun(datasetId: string, runId: string | null) {
 export function useStartBootstrap(datasetId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: (settings: Partial<BootstrapRunSettings>) => api.post<BootstrapRun>(`/datasets/${segment(datasetId)}/runs`, { kind: "bootstrap", settings }),
+    mutationFn: (settings: z.input<typeof BootstrapSettingsSchema>) => api.post<BootstrapRun>(`/datasets/${segment(datasetId)}/runs`, { kind: "bootstrap", settings }),
     onSuccess: (run) => {
       queryClient.setQueryData(queryKeys.runs.detail(run.id), run);
       return queryClient.invalidateQueries({ queryKey: queryKeys.datasets.runs(datasetId) });

@@ -6,11 +6,11 @@
  */
 import { useEffect, useMemo, useState } from "react";
 import { isApiError } from "../../api/client";
-import { type DatasetKind, type DatasetSummary, type UploadPreview, type ValidationReport, useCheckUpload, usePreviewUpload, useUploadDataset } from "../../api/field-data";
+import { type DatasetKind, type DatasetSummary, type UploadParts, type UploadPreview, type ValidationReport, useCheckUpload, usePreviewUpload, useUploadDataset } from "../../api/field-data";
 import { Alert } from "../../components/ui/alert";
 import { Button } from "../../components/ui/button";
 import { SelectField, TextField } from "../../components/ui/field";
-import { MAX_UPLOAD_BYTES, MAX_UPLOAD_ROWS } from "../../../shared/schemas/field-data";
+import { MAX_UPLOAD_BYTES, MAX_UPLOAD_ROWS, type CountsMapping, type Delimiter, type FatesMapping } from "../../../shared/schemas/field-data";
 import { ValidationReportView } from "./validation-report";
 
 const ROLES: Record<DatasetKind, { key: string; label: string; required: boolean; hint: string }[]> = {
@@ -42,7 +42,7 @@ const MB = MAX_UPLOAD_BYTES / (1024 * 1024);
 export function UploadWizard({ studyId, onImported }: { studyId: string; onImported: (d: DatasetSummary) => void }) {
   const [file, setFile] = useState<File | null>(null);
   const [kind, setKind] = useState<DatasetKind>("counts");
-  const [delimiter, setDelimiter] = useState("auto");
+  const [delimiter, setDelimiter] = useState<Delimiter>("auto");
   const [decimal, setDecimal] = useState<"auto" | "comma" | "point">("auto");
   const [name, setName] = useState("");
   const [mapping, setMapping] = useState<Record<string, string>>({});
@@ -56,7 +56,7 @@ export function UploadWizard({ studyId, onImported }: { studyId: string; onImpor
   const upload = useUploadDataset(studyId);
   const p: UploadPreview | undefined = preview.data;
 
-  const parseOptions = useMemo(() => ({ delimiter, decimalComma: decimal === "auto" ? "auto" : decimal === "comma" }), [delimiter, decimal]);
+  const parseOptions = useMemo(() => ({ delimiter, decimalComma: decimal === "auto" ? ("auto" as const) : decimal === "comma" }), [delimiter, decimal]);
 
   // Read the first rows whenever the file or how to read it changes.
   useEffect(() => {
@@ -79,12 +79,16 @@ export function UploadWizard({ studyId, onImported }: { studyId: string; onImpor
 
   const missing = ROLES[kind].filter((r) => r.required && !mapping[r.key]).map((r) => r.label);
 
-  const parts = () => {
+  // The mapping is checked by the server against the kind's schema; the form only leaves out empty choices.
+  const parts = (): UploadParts => {
     const clean = Object.fromEntries(Object.entries(mapping).filter(([, v]) => v));
-    const m = kind === "counts" ? { ...clean, ...(stageColumns.length ? { stages: stageColumns.map((c) => ({ stage: c, column: c })) } : {}) } : clean;
     const stages = stageOrder.split(",").map((s) => s.trim()).filter(Boolean);
-    const options = kind === "counts" ? parseOptions : { ...parseOptions, deadValue, ...(stages.length ? { stages } : {}) };
-    return { file: file!, kind, name: name.trim() || file!.name.replace(/\.[^.]+$/, ""), mapping: m as never, options };
+    const common = { file: file!, name: name.trim() || file!.name.replace(/\.[^.]+$/, "") };
+    if (kind === "counts") {
+      const m = { ...clean, ...(stageColumns.length ? { stages: stageColumns.map((c) => ({ stage: c, column: c })) } : {}) };
+      return { ...common, kind, mapping: m as CountsMapping, options: parseOptions };
+    }
+    return { ...common, kind, mapping: clean as FatesMapping, options: { ...parseOptions, deadValue, ...(stages.length ? { stages } : {}) } };
   };
 
   const onCheck = () => {
@@ -140,7 +144,7 @@ export function UploadWizard({ studyId, onImported }: { studyId: string; onImpor
             <input type="radio" name="kind" value="stage-fates" checked={kind === "stage-fates"} onChange={() => setKind("stage-fates")} /> Stage fates of marked individuals
           </label>
         </fieldset>
-        <SelectField label="Delimiter" value={delimiter} onChange={(e) => setDelimiter(e.target.value)}>
+        <SelectField label="Delimiter" value={delimiter} onChange={(e) => setDelimiter(e.target.value as Delimiter)}>
           {DELIMITERS.map((d) => (
             <option key={d.value} value={d.value}>
               {d.label}
