@@ -7,23 +7,12 @@
 import { LineChart, ScatterChart } from "echarts/charts";
 import { GridComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, TooltipComponent } from "echarts/components";
 import * as echarts from "echarts/core";
-import { SVGRenderer } from "echarts/renderers";
-import ReactEChartsCore from "echarts-for-react/esm/core";
+import { Chart, INK, SPRUCE, CLAY, INDIGO, OCHRE, textStyle, axisName, splitLine, fmt } from "../../components/ui/chart";
 import { formatNumber } from "../../lib/number-format";
 
-echarts.use([LineChart, ScatterChart, GridComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, TooltipComponent, SVGRenderer]);
+echarts.use([LineChart, ScatterChart, GridComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, TooltipComponent]);
 
-const INK = "#1f2a30";
-const SPRUCE = "#2f6b5a";
-const CLAY = "#b5562f";
-const INDIGO = "#4b4f9c";
-const OCHRE = "#a87a12";
-const FONT = '"Atkinson Hyperlegible", ui-sans-serif, system-ui, sans-serif';
-const textStyle = { color: INK, fontFamily: FONT, fontSize: 12 };
-const axisName = { color: INK, fontFamily: FONT, fontSize: 12, fontWeight: "bold" as const };
 const grid = { left: 12, right: 24, top: 36, bottom: 44, containLabel: true };
-const fmt = (v: unknown) => (typeof v === "number" ? formatNumber(v, 4) : String(v));
-const splitLine = { lineStyle: { color: "#d9d6cf" } };
 const xTemperature = (min?: number, max?: number) => ({
   type: "value",
   name: "Temperature (°C)",
@@ -34,14 +23,6 @@ const xTemperature = (min?: number, max?: number) => ({
   max,
   splitLine,
 });
-
-function Chart({ option, height, ariaLabel }: { option: object; height: number; ariaLabel: string }) {
-  return (
-    <div role="img" aria-label={ariaLabel}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height, width: "100%" }} />
-    </div>
-  );
-}
 
 export function ResponsePreviewChart({ temperatures, values, label, optimum, ariaLabel }: { temperatures: number[]; values: number[]; label: string; optimum: number | null; ariaLabel: string }) {
   const option = {

@@ -7,30 +7,12 @@
 import { BarChart, LineChart } from "echarts/charts";
 import { GridComponent, LegendComponent, MarkLineComponent, TooltipComponent } from "echarts/components";
 import * as echarts from "echarts/core";
-import { SVGRenderer } from "echarts/renderers";
-import ReactEChartsCore from "echarts-for-react/esm/core";
+import { Chart, INK, SPRUCE, CLAY, INDIGO, OCHRE, GRID_LINE, textStyle, axisName, splitLine } from "../../components/ui/chart";
 import { formatNumber } from "../../lib/number-format";
 
-echarts.use([BarChart, LineChart, GridComponent, LegendComponent, MarkLineComponent, TooltipComponent, SVGRenderer]);
+echarts.use([BarChart, LineChart, GridComponent, LegendComponent, MarkLineComponent, TooltipComponent]);
 
-const INK = "#1f2a30";
-const SPRUCE = "#2f6b5a";
-const CLAY = "#b5562f";
-const INDIGO = "#4b4f9c";
-const OCHRE = "#a87a12";
-const GRID_LINE = "#d9d6cf";
-const FONT = '"Atkinson Hyperlegible", ui-sans-serif, system-ui, sans-serif';
-const textStyle = { color: INK, fontFamily: FONT, fontSize: 12 };
-const axisName = { color: INK, fontFamily: FONT, fontSize: 12, fontWeight: "bold" as const };
 const STAGE_COLOURS = [CLAY, OCHRE, INDIGO, "#6b5a2f", "#2f4f6b"];
-
-function Chart({ option, ariaLabel, height = 300 }: { option: object; ariaLabel: string; height?: number }) {
-  return (
-    <div role="img" aria-label={ariaLabel}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height, width: "100%" }} />
-    </div>
-  );
-}
 
 export interface CountsChartProps {
   points: { t: number; label: string; count: number; stageCounts: Record<string, number | null> | null }[];
@@ -61,7 +43,7 @@ export function CountsChart({ points, stages, countLabel, ariaLabel }: CountsCha
     legend: { top: 0, textStyle },
     tooltip: { trigger: "axis", valueFormatter: (v: number) => formatNumber(v, 4) },
     xAxis: { type: "value", min: "dataMin", max: "dataMax", name: "census year", nameLocation: "middle", nameGap: 26, nameTextStyle: axisName, axisLabel: { formatter: (v: number) => String(Math.round(v * 100) / 100) }, splitLine: { show: false } },
-    yAxis: { type: "value", min: 0, name: "count", nameTextStyle: { ...axisName, align: "left" }, splitLine: { lineStyle: { color: GRID_LINE } } },
+    yAxis: { type: "value", min: 0, name: "count", nameTextStyle: { ...axisName, align: "left" }, splitLine },
     series,
   };
   return <Chart option={option} ariaLabel={ariaLabel} />;
@@ -76,7 +58,7 @@ export function RatioChart({ intervals, ariaLabel }: { intervals: { from: number
     grid: { left: 8, right: 56, top: 24, bottom: 56, containLabel: true },
     tooltip: { trigger: "axis", axisPointer: { type: "shadow" }, valueFormatter: (v: number | null) => (v === null ? "no ratio" : formatNumber(v, 4)) },
     xAxis: { type: "category", data: labels, name: "interval", nameLocation: "middle", nameGap: 40, nameTextStyle: axisName, axisLabel: { rotate: 35 } },
-    yAxis: { type: "value", name: "λ_t = N(t+1) / N(t)", nameTextStyle: { ...axisName, align: "left" }, splitLine: { lineStyle: { color: GRID_LINE } } },
+    yAxis: { type: "value", name: "λ_t = N(t+1) / N(t)", nameTextStyle: { ...axisName, align: "left" }, splitLine },
     series: [
       {
         name: "λ_t",
@@ -105,7 +87,7 @@ export function RiskCurveChart({ horizons, probability, lower, upper, ariaLabel 
       },
     },
     xAxis: { type: "category", data: horizons, name: "horizon (years from the last count)", nameLocation: "middle", nameGap: 26, nameTextStyle: axisName, boundaryGap: false },
-    yAxis: { type: "value", min: 0, max: 100, name: "probability of reaching the threshold (%)", nameTextStyle: { ...axisName, align: "left" }, splitLine: { lineStyle: { color: GRID_LINE } } },
+    yAxis: { type: "value", min: 0, max: 100, name: "probability of reaching the threshold (%)", nameTextStyle: { ...axisName, align: "left" }, splitLine },
     series: [
       { name: "lower edge", type: "line", data: lower.map(pct), stack: "band", symbol: "none", lineStyle: { opacity: 0 }, silent: true },
       { name: "95 % bootstrap interval", type: "line", data: upper.map((u, k) => pct(u - lower[k]!)), stack: "band", symbol: "none", lineStyle: { opacity: 0 }, areaStyle: { color: INDIGO, opacity: 0.22 }, itemStyle: { color: "rgba(75, 79, 156, 0.35)" }, silent: true },
@@ -123,7 +105,7 @@ export function LambdaHistogram({ bins, estimate, ariaLabel }: { bins: { from: n
     grid: { left: 8, right: 24, top: 24, bottom: 40, containLabel: true },
     tooltip: { trigger: "axis", axisPointer: { type: "shadow" } },
     xAxis: { type: "category", data: bins.map((b) => formatNumber((b.from + b.to) / 2, 4)), name: "λ of a resample", nameLocation: "middle", nameGap: 26, nameTextStyle: axisName },
-    yAxis: { type: "value", name: "resamples", nameTextStyle: { ...axisName, align: "left" }, splitLine: { lineStyle: { color: GRID_LINE } } },
+    yAxis: { type: "value", name: "resamples", nameTextStyle: { ...axisName, align: "left" }, splitLine },
     series: [
       {
         name: "resamples",

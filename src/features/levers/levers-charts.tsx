@@ -7,30 +7,10 @@
 import { BarChart, HeatmapChart } from "echarts/charts";
 import { GridComponent, LegendComponent, MarkLineComponent, TooltipComponent, VisualMapComponent } from "echarts/components";
 import * as echarts from "echarts/core";
-import { SVGRenderer } from "echarts/renderers";
-import ReactEChartsCore from "echarts-for-react/esm/core";
+import { Chart, INK, PAPER, SPRUCE, CLAY, INDIGO, FONT, textStyle, axisName, splitLine, fmt } from "../../components/ui/chart";
 import { formatNumber } from "../../lib/number-format";
 
-echarts.use([BarChart, HeatmapChart, GridComponent, LegendComponent, MarkLineComponent, TooltipComponent, VisualMapComponent, SVGRenderer]);
-
-const INK = "#1f2a30";
-const PAPER = "#f7f5f0";
-const SPRUCE = "#2f6b5a";
-const CLAY = "#b5562f";
-const INDIGO = "#4b4f9c";
-const FONT = '"Atkinson Hyperlegible", ui-sans-serif, system-ui, sans-serif';
-const textStyle = { color: INK, fontFamily: FONT, fontSize: 12 };
-const axisName = { color: INK, fontFamily: FONT, fontSize: 12, fontWeight: "bold" as const };
-const splitLine = { lineStyle: { color: "#d9d6cf" } };
-const fmt = (v: unknown) => (typeof v === "number" ? formatNumber(v, 4) : String(v));
-
-function Chart({ option, height, ariaLabel }: { option: object; height: number; ariaLabel: string }) {
-  return (
-    <div role="img" aria-label={ariaLabel}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height, width: "100%" }} />
-    </div>
-  );
-}
+echarts.use([BarChart, HeatmapChart, GridComponent, LegendComponent, MarkLineComponent, TooltipComponent, VisualMapComponent]);
 
 /**
  * λ of each row as bars drawn from λ = 1 (replacement): to the left in clay

@@ -7,22 +7,10 @@
 import { BarChart, HeatmapChart, LineChart } from "echarts/charts";
 import { GridComponent, LegendComponent, TooltipComponent, VisualMapComponent } from "echarts/components";
 import * as echarts from "echarts/core";
-import { SVGRenderer } from "echarts/renderers";
-import ReactEChartsCore from "echarts-for-react/esm/core";
+import { Chart, INK, PAPER, SPRUCE, CLAY, INDIGO, GRID_LINE, FONT, textStyle, axisName, splitLine, fmt } from "../../components/ui/chart";
 import { formatNumber } from "../../lib/number-format";
 
-echarts.use([BarChart, HeatmapChart, LineChart, GridComponent, LegendComponent, TooltipComponent, VisualMapComponent, SVGRenderer]);
-
-const INK = "#1f2a30";
-const PAPER = "#f7f5f0";
-const SPRUCE = "#2f6b5a";
-const CLAY = "#b5562f";
-const INDIGO = "#4b4f9c";
-const FONT = '"Atkinson Hyperlegible", ui-sans-serif, system-ui, sans-serif';
-const textStyle = { color: INK, fontFamily: FONT, fontSize: 12 };
-const axisName = { color: INK, fontFamily: FONT, fontSize: 12, fontWeight: "bold" as const };
-
-const fmt = (v: unknown) => (typeof v === "number" ? formatNumber(v, 4) : String(v));
+echarts.use([BarChart, HeatmapChart, LineChart, GridComponent, LegendComponent, TooltipComponent, VisualMapComponent]);
 
 export interface StageBarsProps {
   stageNames: readonly string[];
@@ -41,7 +29,7 @@ export function StageBars({ stageNames, values, valueLabel, color = "spruce", ar
     animation: false,
     grid: { left: 8, right: 48, top: 8, bottom: 40, containLabel: true },
     tooltip: { trigger: "axis", axisPointer: { type: "shadow" }, valueFormatter: fmt },
-    xAxis: { type: "value", name: valueLabel, nameLocation: "middle", nameGap: 26, nameTextStyle: axisName, axisLabel: { formatter: fmt }, splitLine: { lineStyle: { color: "#d9d6cf" } } },
+    xAxis: { type: "value", name: valueLabel, nameLocation: "middle", nameGap: 26, nameTextStyle: axisName, axisLabel: { formatter: fmt }, splitLine },
     yAxis: { type: "category", data: stageNames, inverse: true, axisTick: { show: false }, axisLabel: { width: 140, overflow: "truncate" } },
     series: [
       {
@@ -54,9 +42,7 @@ export function StageBars({ stageNames, values, valueLabel, color = "spruce", ar
     ],
   };
   return (
-    <div role="img" aria-label={ariaLabel}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height: Math.min(720, 64 + 30 * stageNames.length), width: "100%" }} />
-    </div>
+    <Chart option={option} ariaLabel={ariaLabel} height={Math.min(720, 64 + 30 * stageNames.length)} />
   );
 }
 
@@ -130,7 +116,7 @@ export function ElasticityHeatmap({ stageNames, elasticity, structuralZero, aria
       {
         type: "heatmap",
         data,
-        itemStyle: { borderColor: "#d9d6cf", borderWidth: 1 },
+        itemStyle: { borderColor: GRID_LINE, borderWidth: 1 },
         label: {
           show: n <= 12,
           fontFamily: FONT,
@@ -143,9 +129,7 @@ export function ElasticityHeatmap({ stageNames, elasticity, structuralZero, aria
   };
   const size = Math.min(760, 150 + 46 * n) + (n > 6 ? 50 : 0);
   return (
-    <div role="img" aria-label={ariaLabel}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height: size, width: "100%", maxWidth: size + 160 }} />
-    </div>
+    <Chart option={option} ariaLabel={ariaLabel} height={size} style={{ maxWidth: size + 160 }} />
   );
 }
 
@@ -179,7 +163,7 @@ export function ProjectionChart({ stageNames, population, total, logScale, timeS
       // Left-aligned over the axis, so the name is never cut at the chart's edge.
       nameTextStyle: { ...axisName, align: "left" },
       axisLabel: { formatter: fmt },
-      splitLine: { lineStyle: { color: "#d9d6cf" } },
+      splitLine,
     },
     series: [
       { name: "Total", type: "line", data: total.map(clean), showSymbol: false, lineStyle: { width: 3, color: INK }, itemStyle: { color: INK } },
@@ -196,8 +180,6 @@ export function ProjectionChart({ stageNames, population, total, logScale, timeS
     ],
   };
   return (
-    <div role="img" aria-label={ariaLabel}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height: 340, width: "100%" }} />
-    </div>
+    <Chart option={option} ariaLabel={ariaLabel} height={340} />
   );
 }

@@ -11,21 +11,11 @@
 import { BarChart, LineChart } from "echarts/charts";
 import { GridComponent, LegendComponent, MarkLineComponent, TooltipComponent } from "echarts/components";
 import * as echarts from "echarts/core";
-import { SVGRenderer } from "echarts/renderers";
-import ReactEChartsCore from "echarts-for-react/esm/core";
+import { Chart, INK, SPRUCE, CLAY, INDIGO, FONT, textStyle, axisName, splitLine } from "../../components/ui/chart";
 import { formatNumber } from "../../lib/number-format";
 import { formatCount, formatProbability, pluralOf } from "./risk-format";
 
-echarts.use([BarChart, LineChart, GridComponent, LegendComponent, MarkLineComponent, TooltipComponent, SVGRenderer]);
-
-const INK = "#1f2a30";
-const SPRUCE = "#2f6b5a";
-const CLAY = "#b5562f";
-const INDIGO = "#4b4f9c";
-const GRID_LINE = "#d9d6cf";
-const FONT = '"Atkinson Hyperlegible", ui-sans-serif, system-ui, sans-serif';
-const textStyle = { color: INK, fontFamily: FONT, fontSize: 12 };
-const axisName = { color: INK, fontFamily: FONT, fontSize: 12, fontWeight: "bold" as const };
+echarts.use([BarChart, LineChart, GridComponent, LegendComponent, MarkLineComponent, TooltipComponent]);
 
 /** 1, 2 or 5 × 10ⁿ at or above x. */
 function niceCeil(x: number): number {
@@ -77,7 +67,7 @@ export function QuasiExtinctionChart({ year, probability, lower, upper, timeStep
       name: "probability of having been quasi-extinct (%)",
       nameTextStyle: { ...axisName, align: "left" },
       axisLabel: { formatter: (v: number) => `${formatNumber(v, 3)} %` },
-      splitLine: { lineStyle: { color: GRID_LINE } },
+      splitLine,
     },
     series: [
       { name: "lower edge", type: "line", data: lower.map(pct), stack: "band", symbol: "none", lineStyle: { opacity: 0 }, silent: true },
@@ -96,9 +86,7 @@ export function QuasiExtinctionChart({ year, probability, lower, upper, timeStep
     ],
   };
   return (
-    <div role="img" aria-label={ariaLabel}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height: 340, width: "100%" }} />
-    </div>
+    <Chart option={option} ariaLabel={ariaLabel} height={340} />
   );
 }
 
@@ -146,7 +134,7 @@ export function FinalAbundanceChart({ edges, counts, zeroCount, belowRange, abov
       nameTextStyle: axisName,
       axisLabel: { rotate: 35, fontSize: 10, interval: bars.length > 16 ? 1 : 0 },
     },
-    yAxis: { type: "value", name: "replicates", nameTextStyle: { ...axisName, align: "left" }, minInterval: 1, splitLine: { lineStyle: { color: GRID_LINE } } },
+    yAxis: { type: "value", name: "replicates", nameTextStyle: { ...axisName, align: "left" }, minInterval: 1, splitLine },
     series: [
       {
         type: "bar",
@@ -156,9 +144,7 @@ export function FinalAbundanceChart({ edges, counts, zeroCount, belowRange, abov
     ],
   };
   return (
-    <div role="img" aria-label={ariaLabel}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height: 320, width: "100%" }} />
-    </div>
+    <Chart option={option} ariaLabel={ariaLabel} height={320} />
   );
 }
 
@@ -195,7 +181,7 @@ export function AbundanceChart({ mean, sd, timeStepUnit, threshold, ariaLabel }:
       name: "total individuals",
       nameTextStyle: { ...axisName, align: "left" },
       axisLabel: { formatter: (v: number) => formatNumber(v, 3) },
-      splitLine: { lineStyle: { color: GRID_LINE } },
+      splitLine,
     },
     series: [
       { name: "lower edge", type: "line", data: lower, stack: "sd", symbol: "none", lineStyle: { opacity: 0 }, silent: true },
@@ -232,8 +218,6 @@ export function AbundanceChart({ mean, sd, timeStepUnit, threshold, ariaLabel }:
     ],
   };
   return (
-    <div role="img" aria-label={ariaLabel}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height: 320, width: "100%" }} />
-    </div>
+    <Chart option={option} ariaLabel={ariaLabel} height={320} />
   );
 }

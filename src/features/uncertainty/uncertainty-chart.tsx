@@ -6,20 +6,11 @@
 import { BarChart } from "echarts/charts";
 import { GridComponent, MarkLineComponent, TooltipComponent } from "echarts/components";
 import * as echarts from "echarts/core";
-import { SVGRenderer } from "echarts/renderers";
-import ReactEChartsCore from "echarts-for-react/esm/core";
+import { Chart, INK, SPRUCE, CLAY, textStyle, axisName, splitLine } from "../../components/ui/chart";
 import type { UncertaintyRunResult } from "../../api/runs";
 import { formatPercent } from "../../lib/number-format";
 
-echarts.use([BarChart, GridComponent, MarkLineComponent, TooltipComponent, SVGRenderer]);
-
-const INK = "#1f2a30";
-const SPRUCE = "#2f6b5a";
-const CLAY = "#b5562f";
-const GRID_LINE = "#d9d6cf";
-const FONT = '"Atkinson Hyperlegible", ui-sans-serif, system-ui, sans-serif';
-const textStyle = { color: INK, fontFamily: FONT, fontSize: 12 };
-const axisName = { color: INK, fontFamily: FONT, fontSize: 12, fontWeight: "bold" as const };
+echarts.use([BarChart, GridComponent, MarkLineComponent, TooltipComponent]);
 
 export function LambdaHistogramChart({ result }: { result: UncertaintyRunResult }) {
   const { edges, counts } = result.lambdaHistogram;
@@ -43,7 +34,7 @@ export function LambdaHistogramChart({ result }: { result: UncertaintyRunResult 
       },
     },
     xAxis: { type: "category", data: labels, name: "λ", nameLocation: "middle", nameGap: 28, nameTextStyle: axisName, axisLabel: { hideOverlap: true } },
-    yAxis: { type: "value", name: "draws", nameTextStyle: { ...axisName, align: "left" }, splitLine: { lineStyle: { color: GRID_LINE } } },
+    yAxis: { type: "value", name: "draws", nameTextStyle: { ...axisName, align: "left" }, splitLine },
     series: [
       {
         type: "bar",
@@ -56,8 +47,6 @@ export function LambdaHistogramChart({ result }: { result: UncertaintyRunResult 
     ],
   };
   return (
-    <div role="img" aria-label={`Histogram of λ over ${result.draws.toLocaleString("en")} draws: ${formatPercent(result.lambda.probabilityBelowOne)} of them below 1.`}>
-      <ReactEChartsCore echarts={echarts} option={option} notMerge opts={{ renderer: "svg" }} style={{ height: 300, width: "100%" }} />
-    </div>
+    <Chart option={option} ariaLabel={`Histogram of λ over ${result.draws.toLocaleString("en")} draws: ${formatPercent(result.lambda.probabilityBelowOne)} of them below 1.`} height={300} />
   );
 }
