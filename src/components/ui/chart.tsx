@@ -9,16 +9,15 @@ import ReactEChartsCore from "echarts-for-react/esm/core";
 import * as echarts from "echarts/core";
 import { SVGRenderer } from "echarts/renderers";
 import type { CSSProperties } from "react";
+import { INK } from "../../../shared/diagram/palette";
 import { formatNumber } from "../../lib/number-format";
 
 echarts.use([SVGRenderer]);
 
-export const INK = "#1f2a30";
-export const PAPER = "#f7f5f0";
-export const SPRUCE = "#2f6b5a";
-export const CLAY = "#b5562f";
-export const INDIGO = "#4b4f9c";
+export { CLAY, INDIGO, INK, PAPER, SPRUCE } from "../../../shared/diagram/palette";
+/** A second accent for a fourth series (the stage colour "Ochre"). */
 export const OCHRE = "#a87a12";
+/** Grid lines and empty bars. */
 export const GRID_LINE = "#d9d6cf";
 export const FONT = '"Atkinson Hyperlegible", ui-sans-serif, system-ui, sans-serif';
 export const textStyle = { color: INK, fontFamily: FONT, fontSize: 12 };
