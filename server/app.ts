@@ -79,6 +79,9 @@ export function createApp(deps: AppDeps): Express {
   // Scripts authenticate with `Authorization: Bearer <token>` and carry no cookie credentials, so their
   // requests skip the cookie, session and CSRF layers altogether (no session row is read or minted).
   const cookieAuth = Router();
+  // Secure cookies when the public address is https, and also for any request that came over TLS
+  // (through a proxy on loopback saying X-Forwarded-Proto: https) while PUBLIC_URL is left http.
+  const https = config.publicUrl.startsWith("https:");
   cookieAuth.use(cookieParser());
   const PgStore = connectPgSimple(session);
   cookieAuth.use(
@@ -89,7 +92,7 @@ export function createApp(deps: AppDeps): Express {
       resave: false,
       saveUninitialized: false,
       rolling: true,
-      cookie: { httpOnly: true, sameSite: "lax", secure: config.publicUrl.startsWith("https:"), maxAge: 14 * 86_400_000 },
+      cookie: { httpOnly: true, sameSite: "lax", secure: https || "auto", maxAge: 14 * 86_400_000 },
     }),
   );
   // One Passport per app: the module's shared instance would keep the first app's database lookup for every app in the process.
@@ -104,7 +107,7 @@ export function createApp(deps: AppDeps): Express {
     if (req.user) req.authVia = "session";
     next();
   });
-  cookieAuth.use(csrfProtection(config.sessionSecret, { secureCookie: config.publicUrl.startsWith("https:") }));
+  cookieAuth.use(csrfProtection(config.sessionSecret, { secureCookie: https }));
 
   const bearerAuth: RequestHandler = async (req, _res, next) => {
     const match = /^Bearer\s+(\S+)$/i.exec(req.get("authorization")!);

@@ -12,6 +12,7 @@ const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
  * X-CSRF-Token header on every write. Requests authenticated by a Bearer token
  * carry no cookie credentials and skip the check.
  */
+/** `secureCookie`: always mark the cookie Secure; otherwise it is marked so on requests that came over TLS. */
 export function csrfProtection(secret: string, options: { secureCookie: boolean }): RequestHandler {
   const sign = (nonce: string) => `${nonce}.${hmac(secret, nonce)}`;
   const valid = (token: string) => {
@@ -24,7 +25,7 @@ export function csrfProtection(secret: string, options: { secureCookie: boolean 
     if (req.authVia !== "token" && (!cookie || !valid(cookie))) {
       res.cookie(CSRF_COOKIE, sign(randomBytes(16).toString("base64url")), {
         sameSite: "strict",
-        secure: options.secureCookie,
+        secure: options.secureCookie || req.secure,
         httpOnly: false,
         path: "/",
       });

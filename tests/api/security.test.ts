@@ -71,6 +71,24 @@ describe("cookies", () => {
   });
 });
 
+describe("cookies through a TLS proxy while PUBLIC_URL is left http", () => {
+  it("a request that came over TLS (X-Forwarded-Proto: https from the proxy on loopback) gets both cookies Secure", async () => {
+    const a = await signUpAgent(server);
+    const tlsHeaders = { "x-forwarded-proto": "https" };
+    const pre = await fetch(`${server.url}/api/v1/auth/session`, { headers: tlsHeaders });
+    const csrfCookie = cookieNamed(setCookies(pre), "sw_csrf")!;
+    expect(csrfCookie).toMatch(/;\s*Secure/i);
+    const csrf = decodeURIComponent(csrfCookie.split(";")[0]!.slice("sw_csrf=".length));
+    const res = await fetch(`${server.url}/api/v1/auth/sign-in`, {
+      method: "POST",
+      headers: { ...tlsHeaders, "content-type": "application/json", cookie: csrfCookie.split(";")[0]!, "x-csrf-token": csrf },
+      body: JSON.stringify({ email: a.user.email, password: a.user.password }),
+    });
+    expect(res.status).toBe(200);
+    expect(cookieNamed(setCookies(res), "sw_session")).toMatch(/;\s*Secure/i);
+  });
+});
+
 describe("cookies behind TLS, reached over plain HTTP", () => {
   it("a server configured for https never sends the session cookie without Secure, even to a request that arrived over plain HTTP", async () => {
     const tls = await startTestServer({ publicUrl: "https://stagewright.example.org" });
