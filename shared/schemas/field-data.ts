@@ -4,7 +4,7 @@
  * are exported beside the schemas (the upload page states them).
  */
 import { z } from "zod";
-import type { CountsAnalysis, StageFateEstimate } from "../fielddata";
+import type { BootstrapSummary, CountsAnalysis, StageFateEstimate } from "../fielddata";
 
 export const MAX_UPLOAD_BYTES = 20 * 1024 * 1024;
 export const MAX_UPLOAD_ROWS = 500_000;
@@ -156,7 +156,7 @@ export interface FateAnalysisResult {
 }
 
 /** What a finished λ bootstrap Run holds. */
-export interface BootstrapRunResult {
+export interface BootstrapRunResult extends BootstrapSummary {
   datasetId: string;
   datasetName: string;
   stages: string[];
@@ -164,16 +164,6 @@ export interface BootstrapRunResult {
   recordsPerStage: number[];
   settings: FateAnalysisSettings;
   seed: number;
-  resamples: number;
-  lambda: number;
-  mean: number;
-  sd: number;
-  bias: number;
-  level: number;
-  lower: number;
-  upper: number;
-  shareBelowOne: number;
-  histogram: { from: number; to: number; count: number }[];
 }
 
 export interface ValidationProblem {
