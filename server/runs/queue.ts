@@ -54,7 +54,11 @@ export function createJobSender(databaseUrl: string): JobSender {
       await b.start();
       await ensureQueue(b);
       return b;
-    })());
+    })().catch((err: unknown) => {
+      // Not cached: the next Run tries again (e.g. once the database is back).
+      started = undefined;
+      throw err;
+    }));
   return {
     async sendChunks(jobs) {
       const b = await boss();
